@@ -1,0 +1,175 @@
+"""Furniture types as data, and resolving a plan's pieces against them and a rule set.
+
+The catalogue (``roomfit/data/catalog.toml``) gives each type a default footprint (width
+along the front, depth front to back, mm), a height, whether its back must stand against a
+wall, the *kind* of use zone on each side that is used (``bed_side``, ``storage_front``, ...)
+and relations to other pieces (a nightstand beside a bed head). The zone's depth is not in
+the catalogue: it comes from the rule set (``zone.<kind>``), because a wheelchair user needs
+more floor in front of a wardrobe than a walking one. Every size names its source.
+
+>>> cat = load_catalog()
+>>> cat["nightstand"].width
+455
+"""
+
+from __future__ import annotations
+
+import tomllib
+from dataclasses import dataclass
+from importlib import resources
+
+from roomfit.errors import PlanError, Problem
+from roomfit.plan import Piece, Plan
+from roomfit.rules import RuleSet
+
+__all__ = [
+    "RELATIONS",
+    "TALL_HEIGHT",
+    "FurnitureType",
+    "ZoneReq",
+    "PieceSpec",
+    "load_catalog",
+    "resolve_piece",
+    "resolve_pieces",
+]
+
+#: Pieces at least this tall (mm) block a window whatever its sill height; lower pieces block
+#: it when taller than the sill. Common practice: a 1200 mm unit still blocks most windows.
+TALL_HEIGHT = 1200
+
+#: Relations a type may have to another piece:
+#: ``beside_head``: stands beside the head end of the target (nightstand and bed);
+#: ``in_front``: stands in front of the target's front (coffee table and sofa);
+#: ``facing``: faces the target across the room (sofa and TV unit).
+RELATIONS = ("beside_head", "in_front", "facing")
+
+
+@dataclass(frozen=True)
+class FurnitureType:
+    """A catalogue entry. ``zones`` maps a side to the zone kind used on that side."""
+
+    id: str
+    label: str
+    category: str
+    width: int
+    depth: int
+    height: int
+    against_wall: bool
+    zones: tuple[tuple[str, str], ...]
+    relations: tuple[tuple[str, str], ...]
+    source: str
+
+
+@dataclass(frozen=True)
+class ZoneReq:
+    """A use zone on one ``side`` of a piece: ``depth`` mm out from that side, along its
+    whole length; ``rule`` is the rule id the depth comes from."""
+
+    side: str
+    kind: str
+    depth: int
+    rule: str
+
+
+@dataclass(frozen=True)
+class PieceSpec:
+    """A plan's piece resolved against the catalogue and the rule set: everything the
+    solver, the checker and the drawings need, in millimetres."""
+
+    id: str
+    label: str
+    type: str
+    category: str
+    width: int
+    depth: int
+    height: int
+    against_wall: bool
+    zones: tuple[ZoneReq, ...]
+    relations: tuple[tuple[str, str], ...]
+    rooms: tuple[str, ...]
+
+    @property
+    def tall(self) -> bool:
+        return self.height >= TALL_HEIGHT
+
+
+def load_catalog() -> dict[str, FurnitureType]:
+    """The bundled catalogue, by type id."""
+    path = resources.files("roomfit") / "data" / "catalog.toml"
+    data = tomllib.loads(path.read_text(encoding="utf-8"))
+    out: dict[str, FurnitureType] = {}
+    for tid, raw in data["types"].items():
+        out[tid] = FurnitureType(
+            id=tid,
+            label=raw["label"],
+            category=raw["category"],
+            width=int(raw["width"]),
+            depth=int(raw["depth"]),
+            height=int(raw["height"]),
+            against_wall=bool(raw.get("against_wall", False)),
+            zones=tuple((side, kind) for side, kind in raw.get("zones", {}).items()),
+            relations=tuple((r["relation"], r["target"]) for r in raw.get("relations", [])),
+            source=raw["source"],
+        )
+    return out
+
+
+def _long_side_zones(zones: list[tuple[str, str]], access: str | None) -> list[tuple[str, str]]:
+    """Apply a bed's ``access``: which long sides (left, right or both) need a zone.
+
+    The main side's zone kind (the catalogue's left one) goes to the only side kept; with
+    ``both``, the right side gets the catalogue's right kind or, if it has none, the main one.
+    """
+    if access is None:
+        return zones
+    by_side = dict(zones)
+    main = by_side.get("left") or by_side.get("right")
+    if main is None:
+        return zones
+    other = by_side.get("right", main)
+    keep = [(s, k) for s, k in zones if s not in ("left", "right")]
+    if access == "both":
+        return [("left", main), ("right", other), *keep]
+    return [(access, main), *keep]
+
+
+def resolve_piece(
+    piece: Piece, rules: RuleSet, catalog: dict[str, FurnitureType], field: str = ""
+) -> PieceSpec:
+    """Combine a piece with its catalogue type and the rule set's zone depths.
+
+    A ``custom`` piece has no use zones; its sizes must all be given (the plan reader checks
+    that). ``access`` (beds) picks which long sides keep a zone, see ``_long_side_zones``.
+    """
+    if piece.type == "custom":
+        assert piece.width and piece.depth and piece.height is not None
+        return PieceSpec(piece.id, piece.label or piece.id, "custom", "custom", piece.width,
+                         piece.depth, piece.height, False, (), (), piece.rooms)
+    if piece.type not in catalog:
+        raise PlanError(Problem(field + ".type", f"unknown furniture type {piece.type!r}",
+                                "run `roomfit catalog` to list the types, or use type = \"custom\""))
+    t = catalog[piece.type]
+    zones = _long_side_zones(list(t.zones), piece.access)
+    reqs = tuple(ZoneReq(side, kind, rules.mm(f"zone.{kind}"), f"zone.{kind}") for side, kind in zones)
+    return PieceSpec(
+        id=piece.id,
+        label=piece.label or t.label,
+        type=t.id,
+        category=t.category,
+        width=piece.width or t.width,
+        depth=piece.depth or t.depth,
+        height=piece.height if piece.height is not None else t.height,
+        against_wall=t.against_wall,
+        zones=reqs,
+        relations=t.relations,
+        rooms=piece.rooms,
+    )
+
+
+def resolve_pieces(plan: Plan, rules: RuleSet) -> tuple[PieceSpec, ...]:
+    """Every piece of ``plan`` resolved, in plan order."""
+    catalog = load_catalog()
+    return tuple(
+        resolve_piece(p, rules, catalog, f"furniture[{i}]") for i, p in enumerate(plan.furniture)
+    )
+

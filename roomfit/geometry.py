@@ -1,0 +1,254 @@
+"""Shapely geometry derived from the data model: rooms, pieces, use zones, door swings.
+
+Everything here is a pure function of frozen plan data. Lengths in mm, plan coordinates
+(y up). The checker, the solver, the route scorer and the drawings all take their shapes from
+these functions, so that they agree on what a door swing or a use zone is.
+
+Worked example, checked by hand: a 900 mm hinged door sweeps a quarter disc of radius 900,
+area pi * 900**2 / 4 = 636 173 mm2 (our polygon approximates the arc with 64 segments).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+from shapely import Polygon, box
+from shapely.geometry import LineString, Point
+from shapely.geometry.base import BaseGeometry
+from shapely.ops import unary_union
+
+from roomfit.catalog import PieceSpec, ZoneReq
+from roomfit.plan import OUTSIDE, Door, Fixture, Leaf, Placement, Plan, Room, Window
+from roomfit.rules import RuleSet
+
+__all__ = [
+    "ARC_SEGMENTS",
+    "DoorShape",
+    "polygon",
+    "room_polygon",
+    "room_polygons",
+    "nearest_edge",
+    "turned_size",
+    "side_direction",
+    "footprint",
+    "footprint_box",
+    "zone_polygon",
+    "use_zones",
+    "door_shape",
+    "door_shapes",
+    "window_segment",
+    "window_band",
+    "fixture_polygon",
+    "fixture_zone",
+    "free_floor",
+]
+
+#: Segments used to draw a quarter circle (door swing arcs).
+ARC_SEGMENTS = 64
+
+_LOCAL_DIRECTION = {"front": (0, 1), "back": (0, -1), "left": (-1, 0), "right": (1, 0)}
+
+
+def polygon(points: tuple[tuple[int, int], ...]) -> Polygon:
+    """A shapely polygon from integer vertices (the closing vertex is implied)."""
+    return Polygon(points)
+
+
+def room_polygon(room: Room) -> Polygon:
+    return Polygon(room.outline)
+
+
+def room_polygons(plan: Plan) -> dict[str, Polygon]:
+    return {r.id: Polygon(r.outline) for r in plan.rooms}
+
+
+def nearest_edge(outline: tuple[tuple[int, int], ...], point: tuple[int, int]) -> tuple[int, float]:
+    """Index of the outline edge nearest ``point`` and the distance to it (mm).
+
+    Edge ``i`` runs from vertex ``i`` to vertex ``i + 1`` (wrapping).
+    """
+    p = Point(point)
+    best = (0, math.inf)
+    n = len(outline)
+    for i in range(n):
+        d = LineString([outline[i], outline[(i + 1) % n]]).distance(p)
+        if d < best[1]:
+            best = (i, d)
+    return best
+
+
+def turned_size(width: int, depth: int, rotation: int) -> tuple[int, int]:
+    """Footprint size along x and y after turning by ``rotation`` degrees."""
+    return (width, depth) if rotation in (0, 180) else (depth, width)
+
+
+def side_direction(side: str, rotation: int) -> tuple[int, int]:
+    """Outward unit vector of a piece's ``side`` after turning it by ``rotation`` (CCW).
+
+    >>> side_direction("front", 0), side_direction("front", 90), side_direction("left", 180)
+    ((0, 1), (-1, 0), (1, 0))
+    """
+    dx, dy = _LOCAL_DIRECTION[side]
+    for _ in range(rotation // 90):
+        dx, dy = -dy, dx
+    return dx, dy
+
+
+def footprint_box(spec: PieceSpec, placement: Placement) -> tuple[int, int, int, int]:
+    """``(x0, y0, x1, y1)`` of a placed piece's footprint."""
+    w, d = turned_size(spec.width, spec.depth, placement.rotation)
+    return placement.x, placement.y, placement.x + w, placement.y + d
+
+
+def footprint(spec: PieceSpec, placement: Placement) -> Polygon:
+    return box(*footprint_box(spec, placement))
+
+
+def zone_polygon(spec: PieceSpec, placement: Placement, zone: ZoneReq) -> Polygon:
+    """The use zone on ``zone.side``: ``zone.depth`` out from that side, along all of it."""
+    x0, y0, x1, y1 = footprint_box(spec, placement)
+    dx, dy = side_direction(zone.side, placement.rotation)
+    t = zone.depth
+    if dx == 1:
+        return box(x1, y0, x1 + t, y1)
+    if dx == -1:
+        return box(x0 - t, y0, x0, y1)
+    if dy == 1:
+        return box(x0, y1, x1, y1 + t)
+    return box(x0, y0 - t, x1, y0)
+
+
+def use_zones(spec: PieceSpec, placement: Placement) -> list[tuple[ZoneReq, Polygon]]:
+    """Every use zone of a placed piece with its polygon (zones of depth 0 are skipped)."""
+    return [(z, zone_polygon(spec, placement, z)) for z in spec.zones if z.depth > 0]
+
+
+@dataclass(frozen=True)
+class DoorShape:
+    """A door's derived geometry.
+
+    ``opening``: the clear opening on the wall of ``door.rooms[0]``; ``inward``: room id ->
+    unit normal pointing into that room; ``swing``: the floor the leaf sweeps (None for
+    sliding leaves, doorways, and leaves swinging outside); ``approach``: room id -> the clear
+    floor kept in front of the door in that room (swing included), clipped to the room.
+    """
+
+    door: Door
+    opening: LineString
+    inward: dict[str, tuple[float, float]]
+    swing: Polygon | None
+    approach: dict[str, BaseGeometry]
+
+
+def _inward_normal(poly: Polygon, at: tuple[float, float], u: tuple[float, float]) -> tuple[float, float]:
+    n = (-u[1], u[0])
+    probe = Point(at[0] + n[0] * 5, at[1] + n[1] * 5)
+    return n if poly.contains(probe) else (-n[0], -n[1])
+
+
+def _quarter_disc(hinge: tuple[float, float], closed_dir: tuple[float, float],
+                  open_dir: tuple[float, float], radius: float) -> Polygon:
+    a0 = math.atan2(closed_dir[1], closed_dir[0])
+    a1 = math.atan2(open_dir[1], open_dir[0])
+    sweep = (a1 - a0 + math.pi) % (2 * math.pi) - math.pi  # +-pi/2
+    pts = [hinge]
+    for k in range(ARC_SEGMENTS + 1):
+        a = a0 + sweep * k / ARC_SEGMENTS
+        pts.append((hinge[0] + radius * math.cos(a), hinge[1] + radius * math.sin(a)))
+    return Polygon(pts)
+
+
+def _rect_from(at: tuple[float, float], u: tuple[float, float], n: tuple[float, float],
+               left: float, right: float, depth: float) -> Polygon:
+    """Rectangle from the wall at ``at`` spanning ``-left..right`` along ``u``, ``depth`` along n."""
+    a = (at[0] - u[0] * left, at[1] - u[1] * left)
+    b = (at[0] + u[0] * right, at[1] + u[1] * right)
+    return Polygon([a, b, (b[0] + n[0] * depth, b[1] + n[1] * depth),
+                    (a[0] + n[0] * depth, a[1] + n[1] * depth)])
+
+
+def door_shape(plan: Plan, door: Door, rules: RuleSet) -> DoorShape:
+    """Opening, swing sector and approach floor of ``door`` under ``rules``.
+
+    The leaf is taken as wide as the clear opening (conservative). On the side the leaf swings
+    into, the approach floor is ``door.approach_swing`` deep (at least the leaf width) and
+    reaches ``door.approach_latch`` beyond the latch jamb; on the other side it is
+    ``door.approach_other`` deep. Sliding leaves and doorways use ``door.approach_other`` on
+    both sides (2010 ADA Table 404.2.4.2 asks the same depth on both sides of a sliding door).
+    """
+    polys = room_polygons(plan)
+    host = plan.room(door.rooms[0])
+    i, _ = nearest_edge(host.outline, door.at)
+    (x0, y0), (x1, y1) = host.outline[i], host.outline[(i + 1) % len(host.outline)]
+    length = math.hypot(x1 - x0, y1 - y0)
+    u = ((x1 - x0) / length, (y1 - y0) / length)
+    at = (float(door.at[0]), float(door.at[1]))
+    half = door.width / 2
+    opening = LineString([(at[0] - u[0] * half, at[1] - u[1] * half),
+                          (at[0] + u[0] * half, at[1] + u[1] * half)])
+    n0 = _inward_normal(polys[door.rooms[0]], at, u)
+    inward = {door.rooms[0]: n0}
+    if door.rooms[1] != OUTSIDE:
+        inward[door.rooms[1]] = (-n0[0], -n0[1])
+    swing = None
+    approach: dict[str, BaseGeometry] = {}
+    other_depth = rules.mm("door.approach_other")
+    for rid, n in inward.items():
+        if door.leaf == Leaf.HINGED and door.swings_into == rid:
+            f = (-n[0], -n[1])  # facing the door from inside the room
+            left = (-f[1], f[0])
+            sign = 1 if door.hinge == "left" else -1
+            hinge = (at[0] + sign * left[0] * half, at[1] + sign * left[1] * half)
+            closed = (-sign * left[0], -sign * left[1])
+            swing = _quarter_disc(hinge, closed, n, door.width)
+            depth = max(rules.mm("door.approach_swing"), door.width)
+            latch = rules.mm("door.approach_latch")
+            # the latch jamb lies opposite the hinge: towards `closed` from the hinge
+            along_latch = closed
+            sgn = 1 if (along_latch[0] * u[0] + along_latch[1] * u[1]) > 0 else -1
+            lo, hi = (half, half + latch) if sgn > 0 else (half + latch, half)
+            zone = _rect_from(at, u, n, lo, hi, depth).union(swing)
+        else:
+            if other_depth == 0:
+                continue
+            zone = _rect_from(at, u, n, half, half, other_depth)
+        approach[rid] = zone.intersection(polys[rid])
+    return DoorShape(door, opening, inward, swing, approach)
+
+
+def door_shapes(plan: Plan, rules: RuleSet) -> list[DoorShape]:
+    return [door_shape(plan, d, rules) for d in plan.doors]
+
+
+def window_segment(plan: Plan, window: Window) -> LineString:
+    """The window opening on its wall."""
+    room = plan.room(window.room)
+    i, _ = nearest_edge(room.outline, window.at)
+    (x0, y0), (x1, y1) = room.outline[i], room.outline[(i + 1) % len(room.outline)]
+    length = math.hypot(x1 - x0, y1 - y0)
+    u = ((x1 - x0) / length, (y1 - y0) / length)
+    h = window.width / 2
+    return LineString([(window.at[0] - u[0] * h, window.at[1] - u[1] * h),
+                       (window.at[0] + u[0] * h, window.at[1] + u[1] * h)])
+
+
+def window_band(plan: Plan, window: Window, depth: int) -> BaseGeometry:
+    """Floor within ``depth`` of the window opening, inside its room: tall pieces stay out."""
+    seg = window_segment(plan, window)
+    return seg.buffer(depth, cap_style="flat").intersection(room_polygon(plan.room(window.room)))
+
+
+def fixture_polygon(fixture: Fixture) -> Polygon:
+    return Polygon(fixture.outline)
+
+
+def fixture_zone(fixture: Fixture) -> Polygon | None:
+    return Polygon(fixture.zone) if fixture.zone else None
+
+
+def free_floor(room: Room, plan: Plan, obstacles: list[BaseGeometry] | None = None) -> BaseGeometry:
+    """The room's floor less its fixtures and the given obstacles (furniture footprints)."""
+    taken = [fixture_polygon(f) for f in plan.fixtures if f.room == room.id]
+    taken += obstacles or []
+    return room_polygon(room).difference(unary_union(taken)) if taken else room_polygon(room)

@@ -1,0 +1,205 @@
+"""Rule sets: the clearances that govern one client's home, each value with its source.
+
+A rule set is a TOML file in ``roomfit/data/rules/``. Every rule has an id of our own, a
+one-line description, its value in the unit the source states (inches stay inches and are
+converted exactly, 60 in -> 1524 mm), the source (standard or handbook, edition, section) and
+a status: ``verified`` against the named text, ``memory`` (a default to confirm) or
+``common-practice`` (no standard behind it). A plan picks a set and may override values;
+overridden rules say so.
+
+Rule ids every set defines (see ``docs/rules.md`` for their meaning):
+
+- ``route.width``: clear width of walking routes (mm);
+- ``route.pinch_width`` and ``route.pinch_length``: a route may narrow to this width for at
+  most this length (sets without such an allowance repeat ``route.width`` and 0);
+- ``turning.size``: diameter of the turning circle or side of the movement square, 0 when the
+  set asks for none; ``turning.shape``: ``circle``, ``square`` or ``circle-or-t``;
+- ``door.min_width``: least clear width of a door on a route;
+- ``door.approach_swing`` / ``door.approach_other``: depth of the clear floor kept in front of
+  a door on the side it swings into / on the other side; ``door.approach_latch``: how far
+  that floor extends beyond the latch jamb on the pull side;
+- ``window.band``: depth in front of a window where tall pieces may not stand;
+- ``zone.<kind>``: depth of the use zone of each kind the catalogue uses (bed side, storage
+  front, seat front, ...).
+
+>>> rs = load_ruleset("ada-2010")
+>>> rs.mm("turning.size")
+1524
+"""
+
+from __future__ import annotations
+
+import tomllib
+from dataclasses import dataclass, replace
+from fractions import Fraction
+from importlib import resources
+
+from roomfit.errors import Problem, RuleError
+from roomfit.units import MM_PER
+
+__all__ = [
+    "Rule",
+    "RuleSet",
+    "STATUSES",
+    "REQUIRED_RULES",
+    "ruleset_ids",
+    "load_ruleset",
+    "rules_for",
+]
+
+STATUSES = ("verified", "memory", "common-practice")
+
+#: Rule ids every rule set must define; zone kinds come from the catalogue on top.
+REQUIRED_RULES = (
+    "route.width",
+    "route.pinch_width",
+    "route.pinch_length",
+    "turning.size",
+    "turning.shape",
+    "door.min_width",
+    "door.approach_swing",
+    "door.approach_other",
+    "door.approach_latch",
+    "window.band",
+)
+
+TURNING_SHAPES = ("circle", "square", "circle-or-t")
+
+
+@dataclass(frozen=True)
+class Rule:
+    """One clearance value with its source.
+
+    ``value`` is in ``unit`` as the source states it (``mm`` or ``in``; ``text`` for a word
+    such as a shape). ``overridden`` is True when the client's plan replaced the value; the
+    source then still names where the default came from.
+    """
+
+    id: str
+    description: str
+    value: float | str
+    unit: str
+    source: str
+    status: str
+    overridden: bool = False
+
+    @property
+    def mm(self) -> int:
+        """The value in whole millimetres (exact conversion, rounded at the end)."""
+        if self.unit == "text" or isinstance(self.value, str):
+            raise RuleError(Problem(self.id, f"rule {self.id!r} is not a length"))
+        return int(round(Fraction(str(self.value)) * MM_PER[self.unit]))
+
+    @property
+    def exact_mm(self) -> float:
+        """The value in millimetres without rounding (60 in -> 1524.0)."""
+        if isinstance(self.value, str):
+            raise RuleError(Problem(self.id, f"rule {self.id!r} is not a length"))
+        return float(Fraction(str(self.value)) * MM_PER[self.unit])
+
+
+@dataclass(frozen=True)
+class RuleSet:
+    """A named set of rules, e.g. everyday handbook clearances or ADA 2010."""
+
+    id: str
+    label: str
+    description: str
+    rules: tuple[Rule, ...]
+
+    def get(self, rule_id: str) -> Rule:
+        for r in self.rules:
+            if r.id == rule_id:
+                return r
+        raise RuleError(
+            Problem(f"rules.{rule_id}", f"rule set {self.id!r} has no rule {rule_id!r}",
+                    "run `roomfit rules " + self.id + "` to list its rules")
+        )
+
+    def has(self, rule_id: str) -> bool:
+        return any(r.id == rule_id for r in self.rules)
+
+    def mm(self, rule_id: str) -> int:
+        """Value of a length rule in millimetres."""
+        return self.get(rule_id).mm
+
+    def text(self, rule_id: str) -> str:
+        return str(self.get(rule_id).value)
+
+    @property
+    def overridden(self) -> tuple[Rule, ...]:
+        return tuple(r for r in self.rules if r.overridden)
+
+
+def ruleset_ids() -> list[str]:
+    """Ids of the bundled rule sets, sorted."""
+    folder = resources.files("roomfit") / "data" / "rules"
+    return sorted(p.name[:-5] for p in folder.iterdir() if p.name.endswith(".toml"))
+
+
+def _parse_rule(rule_id: str, raw: object, where: str) -> Rule:
+    if not isinstance(raw, dict):
+        raise RuleError(Problem(where, "expected a table with value, unit, source"))
+    missing = [k for k in ("description", "value", "unit", "source", "status") if k not in raw]
+    if missing:
+        raise RuleError(Problem(where, f"missing {', '.join(missing)}"))
+    if raw["status"] not in STATUSES:
+        raise RuleError(Problem(where + ".status", f"unknown status {raw['status']!r}",
+                                f"use one of {', '.join(STATUSES)}"))
+    if raw["unit"] not in ("mm", "in", "text"):
+        raise RuleError(Problem(where + ".unit", f"unknown unit {raw['unit']!r}",
+                                "use mm, in or text"))
+    return Rule(rule_id, raw["description"], raw["value"], raw["unit"], raw["source"],
+                raw["status"])
+
+
+def load_ruleset(name: str, overrides: dict[str, int | str] | None = None) -> RuleSet:
+    """Load a bundled rule set by id and apply ``overrides`` (rule id -> mm).
+
+    Raises :class:`RuleError` for an unknown set (listing the known ones), an unknown rule id
+    in ``overrides`` or a negative override.
+    """
+    known = ruleset_ids()
+    if name not in known:
+        raise RuleError(Problem("rules.set", f"unknown rule set {name!r}",
+                                f"use one of {', '.join(known)}"))
+    path = resources.files("roomfit") / "data" / "rules" / f"{name}.toml"
+    data = tomllib.loads(path.read_text(encoding="utf-8"))
+    rules = tuple(
+        _parse_rule(rid, raw, f"{name}.rules.{rid}") for rid, raw in data["rules"].items()
+    )
+    rs = RuleSet(name, data["label"], data["description"], rules)
+    if overrides:
+        rs = _apply_overrides(rs, overrides)
+    return rs
+
+
+def _apply_overrides(rs: RuleSet, overrides: dict[str, int | str]) -> RuleSet:
+    problems: list[Problem] = []
+    by_id = {r.id: r for r in rs.rules}
+    for rid, value in overrides.items():
+        field = f"rules.overrides.{rid}"
+        if rid not in by_id:
+            problems.append(Problem(field, f"rule set {rs.id!r} has no rule {rid!r}",
+                                    f"run `roomfit rules {rs.id}` to list its rules"))
+        elif by_id[rid].unit == "text":
+            if not isinstance(value, str):
+                problems.append(Problem(field, f"expected a word, found {value!r}"))
+            elif rid == "turning.shape" and value not in TURNING_SHAPES:
+                problems.append(Problem(field, f"unknown shape {value!r}",
+                                        f"use one of {', '.join(TURNING_SHAPES)}"))
+            else:
+                by_id[rid] = replace(by_id[rid], value=value, overridden=True)
+        elif isinstance(value, bool) or not isinstance(value, int) or value < 0:
+            problems.append(Problem(field, f"expected a length of 0 mm or more, found {value!r}"))
+        else:
+            by_id[rid] = replace(by_id[rid], value=value, unit="mm", overridden=True)
+    if problems:
+        raise RuleError(problems)
+    return replace(rs, rules=tuple(by_id[r.id] for r in rs.rules))
+
+
+def rules_for(plan: object) -> RuleSet:
+    """The rule set a plan picks, with its overrides applied."""
+    choice = plan.rules  # type: ignore[attr-defined]
+    return load_ruleset(choice.set, choice.override_map())
