@@ -1,0 +1,543 @@
+"""roomfit's page for planning with the client at the table.
+
+Run from the repository root::
+
+    streamlit run app.py
+
+The page holds layout only: reading plans, editing the furniture list, auditing, solving,
+drawing and reports all call the library functions the ``roomfit`` command uses (through
+:mod:`roomfit.page` where the page needs a small function of its own). The plan being edited
+lives in ``st.session_state["plan"]``; a bad upload or a bad value shows a message and leaves
+it as it was.
+"""
+
+from __future__ import annotations
+
+import logging
+import time
+from collections.abc import Iterator
+from contextlib import contextmanager
+from pathlib import Path
+from typing import Any
+
+import streamlit as st
+
+from roomfit import page
+from roomfit.catalog import load_catalog, resolve_pieces
+from roomfit.cli import CAUTION
+from roomfit.errors import RoomfitError
+from roomfit.geometry import room_polygon
+from roomfit.plan import Plan
+from roomfit.planfile import dumps_plan, read_plan
+from roomfit.rules import RuleSet, load_ruleset, rules_for, ruleset_ids
+
+ROOT = Path(__file__).resolve().parent
+PLANS = ROOT / "plans"
+DEFAULT_SAMPLE = "studio.toml"  # the smallest sample opens first
+LOG = logging.getLogger("roomfit.app")
+
+draw = page.optional_module("draw")
+check = page.optional_module("check")
+solver = page.optional_module("solver")
+routes = page.optional_module("routes")
+compare = page.optional_module("compare")
+report = page.optional_module("report")
+
+_CSS = """
+<style>
+.rf-drawing svg { max-width: 100%; height: auto; }
+.rf-caution { border-left: 4px solid #b5651d; background: #fbf4ec; padding: 0.5rem 0.8rem;
+              font-size: 0.9rem; color: #4a3520; margin: 0.5rem 0 1rem 0; }
+</style>
+"""
+
+
+# ---------------------------------------------------------------------------------------------
+# state
+
+
+def _state() -> Any:
+    return st.session_state
+
+
+def _set_plan(plan: Plan, origin: str) -> None:
+    s = _state()
+    s["plan"] = plan
+    s["origin"] = origin
+    s["gen"] = s.get("gen", 0) + 1  # fresh form widgets for a newly opened plan
+    s["solve"] = None
+    s["edit_error"] = []
+
+
+def _init() -> None:
+    s = _state()
+    for key, value in (("plan", None), ("origin", ""), ("solve", None), ("upload_id", None),
+                       ("upload_error", []), ("edit_error", []), ("notice", "")):
+        s.setdefault(key, value)
+    if s["plan"] is None:
+        samples = page.sample_files(PLANS)
+        first = PLANS / DEFAULT_SAMPLE if (PLANS / DEFAULT_SAMPLE).exists() else None
+        if samples:
+            first = first or samples[0]
+            try:
+                _set_plan(read_plan(first), f"sample {first.name}")
+            except RoomfitError as e:
+                s["upload_error"] = page.error_lines(e)
+
+
+def _k(name: str, item: str) -> str:
+    """Key of a widget that belongs to one opened plan (``gen`` changes when one is opened)."""
+    return f"{name}_{_state().get('gen', 0)}_{item}"
+
+
+def _fail(err: RoomfitError) -> None:
+    _state()["edit_error"] = page.error_lines(err)
+
+
+def _edit(func: Any, *args: Any, notice: str = "", **kwargs: Any) -> None:
+    """Apply an edit to the plan; on a bad value keep the plan and show what is wrong."""
+    s = _state()
+    try:
+        new = func(s["plan"], *args, **kwargs)
+    except RoomfitError as e:
+        _fail(e)
+        return
+    s["plan"] = new
+    s["edit_error"] = []
+    s["notice"] = notice
+
+
+@contextmanager
+def _panel(name: str) -> Iterator[None]:
+    """Show a problem in one panel as a message; the rest of the page keeps running."""
+    try:
+        yield
+    except RoomfitError as e:
+        st.error("\n\n".join(page.error_lines(e)))
+    except Exception as e:  # noqa: BLE001 - never show a traceback, keep the page running
+        LOG.exception("panel %s failed", name)
+        st.error(f"The {name} panel ran into a problem it could not handle ({type(e).__name__}: "
+                 f"{e}). Your plan and edits are kept.")
+
+
+def _caution() -> None:
+    st.markdown(f'<div class="rf-caution">{CAUTION}</div>', unsafe_allow_html=True)
+
+
+def _unavailable(what: str) -> None:
+    st.info(f"{what} is not available in this version of roomfit.")
+
+
+def _show_svg(svg: str) -> None:
+    body = svg[svg.find("<svg"):] if "<svg" in svg else svg
+    st.markdown(f'<div class="rf-drawing">{" ".join(body.splitlines())}</div>',
+                unsafe_allow_html=True)
+
+
+def _drawing(plan: Plan, rules: RuleSet, marks: Any = (), paths: Any = (),
+             title: str | None = None) -> str | None:
+    if draw is None:
+        _unavailable("The drawing")
+        return None
+    svg = draw.draw_svg(plan, rules, marks=marks, paths=paths, title=title)
+    _show_svg(svg)
+    return svg
+
+
+# ---------------------------------------------------------------------------------------------
+# callbacks (run before the page is drawn again)
+
+
+def _open_sample() -> None:
+    s = _state()
+    path = PLANS / s["sample_choice"]
+    try:
+        _set_plan(read_plan(path), f"sample {path.name}")
+        s["upload_error"] = []
+    except RoomfitError as e:
+        s["upload_error"] = page.error_lines(e)
+
+
+def _take_upload() -> None:
+    s = _state()
+    up = s.get("upload")
+    if up is None:
+        return
+    s["upload_id"] = up.file_id
+    try:
+        _set_plan(page.plan_from_upload(up.name, up.getvalue()), f"upload {up.name}")
+        s["upload_error"] = []
+    except RoomfitError as e:
+        s["upload_error"] = page.error_lines(e)
+
+
+def _add_piece() -> None:
+    s = _state()
+    t = s["add_type"]
+    _edit(page.add_piece, t, s[_k("add_rooms", t)], s[_k("add_label", t)], s[_k("add_w", t)],
+          s[_k("add_d", t)], s[_k("add_h", t)], _access(s.get(_k("add_access", t))),
+          notice="Piece added.")
+
+
+def _access(choice: str | None) -> str | None:
+    return None if choice in (None, "as the catalogue says") else choice
+
+
+def _change_piece() -> None:
+    s = _state()
+    pid = s["edit_piece"]
+    _edit(page.update_piece, pid, label=s[_k("ed_label", pid)], rooms=s[_k("ed_rooms", pid)],
+          width=s[_k("ed_w", pid)], depth=s[_k("ed_d", pid)], height=s[_k("ed_h", pid)],
+          access=_access(s.get(_k("ed_access", pid))), notice=f"{pid} changed.")
+
+
+def _remove_piece() -> None:
+    pid = _state()["edit_piece"]
+    _edit(page.remove_piece, pid, notice=f"{pid} removed.")
+
+
+def _toggle_lock() -> None:
+    s = _state()
+    pid = s["edit_piece"]
+    piece = s["plan"].piece(pid)
+    _edit(page.lock_piece, pid, not piece.locked,
+          notice=f"{pid} {'unlocked' if piece.locked else 'locked where it stands'}.")
+
+
+def _pick_ruleset() -> None:
+    s = _state()
+    plan: Plan = s["plan"]
+    _edit(page.with_rule_choice, s["rule_set"], plan.rules.override_map(),
+          notice=f"Rule set {s['rule_set']} chosen.")
+    if s["edit_error"]:
+        # the plan's overrides do not fit the new set: pick it without them
+        _edit(page.with_rule_choice, s["rule_set"], {},
+              notice=f"Rule set {s['rule_set']} chosen; the earlier overrides did not apply.")
+
+
+def _apply_overrides() -> None:
+    s = _state()
+    plan: Plan = s["plan"]
+    base = load_ruleset(plan.rules.set)
+    overrides = dict(plan.rules.override_map())
+    for rid in page.OVERRIDABLE:
+        value = s.get(f"ov_{plan.rules.set}_{rid}")
+        if value is None or not base.has(rid):
+            continue
+        if int(value) == base.mm(rid):
+            overrides.pop(rid, None)
+        else:
+            overrides[rid] = int(value)
+    shape = s.get(f"ov_{plan.rules.set}_turning.shape")
+    if shape is not None:
+        if shape == base.text("turning.shape"):
+            overrides.pop("turning.shape", None)
+        else:
+            overrides["turning.shape"] = shape
+    _edit(page.with_rule_choice, plan.rules.set, overrides, notice="Rule values applied.")
+
+
+def _clear_overrides() -> None:
+    plan: Plan = _state()["plan"]
+    _edit(page.with_rule_choice, plan.rules.set, {}, notice="Overrides cleared.")
+
+
+def _keep(index: int) -> None:
+    s = _state()
+    result = s["solve"]["result"]
+    cand = result.candidates[index]
+    _edit(page.keep_layout, cand.layout, notice=f"Arrangement {index + 1} kept: every piece now "
+          "has a place; lock the ones that should stay, or check it as it stands.")
+
+
+# ---------------------------------------------------------------------------------------------
+# panels
+
+
+def _sidebar() -> None:
+    s = _state()
+    sb = st.sidebar
+    sb.header("Apartment")
+    names = [p.name for p in page.sample_files(PLANS)]
+    if names:
+        if s.get("sample_choice") not in names:
+            s["sample_choice"] = DEFAULT_SAMPLE if DEFAULT_SAMPLE in names else names[0]
+        sb.selectbox("Bundled sample", names, key="sample_choice")
+        sb.button("Open this sample", key="open_sample", on_click=_open_sample)
+    up = sb.file_uploader("Or bring a plan file (.toml)", type=["toml"], key="upload")
+    if up is not None and up.file_id != s["upload_id"]:
+        _take_upload()
+    if s["upload_error"]:
+        sb.error("That file could not be opened; the plan you had stays open.\n\n"
+                 + "\n\n".join(s["upload_error"]))
+    plan: Plan | None = s["plan"]
+    if plan is not None:
+        sb.caption(f"Open: {plan.name or '(no name)'} — from {s['origin']}")
+        sb.download_button("Save the plan as edited (.toml)", dumps_plan(plan),
+                           file_name=f"{page.file_stem(plan)}.toml", mime="application/toml",
+                           key="save_plan")
+
+
+def _overview(plan: Plan, rules: RuleSet) -> None:
+    st.subheader(plan.name or "Plan")
+    who = " · ".join(x for x in (plan.client, plan.address) if x)
+    if who:
+        st.caption(who)
+    cols = st.columns(5)
+    cols[0].metric("Rooms", len(plan.rooms))
+    cols[1].metric("Doors", len(plan.doors))
+    cols[2].metric("Windows", len(plan.windows))
+    cols[3].metric("Pieces", len(plan.furniture))
+    cols[4].metric("Placed", sum(p.placement is not None for p in plan.furniture))
+    st.dataframe([{"room": r.id, "name": r.label, "use": r.use,
+                   "area (m²)": round(room_polygon(r).area / 1e6, 2)} for r in plan.rooms],
+                 hide_index=True)
+    _drawing(plan, rules, title=plan.name)
+
+
+def _furniture(plan: Plan, rules: RuleSet) -> None:
+    s = _state()
+    st.dataframe(page.piece_rows(plan, rules), hide_index=True)
+    rooms = [r.id for r in plan.rooms]
+    labels = {r.id: f"{r.label} ({r.id})" for r in plan.rooms}
+    left, right = st.columns(2)
+    with left:
+        st.markdown("**Add a piece**")
+        choices = dict(page.type_choices())
+        t = st.selectbox("Kind", list(choices), format_func=lambda k: choices[k], key="add_type")
+        cat = load_catalog()
+        d = cat.get(t)
+        with st.form(_k("add_form", t), border=True):
+            st.text_input("Name (optional)", key=_k("add_label", t))
+            st.multiselect("May stand in", rooms, default=rooms[:1], format_func=labels.get,
+                           key=_k("add_rooms", t))
+            c1, c2, c3 = st.columns(3)
+            c1.number_input("Width mm", 0, 20000, d.width if d else 0, step=10, key=_k("add_w", t))
+            c2.number_input("Depth mm", 0, 20000, d.depth if d else 0, step=10, key=_k("add_d", t))
+            c3.number_input("Height mm", 0, 5000, d.height if d else 0, step=10, key=_k("add_h", t))
+            if d is not None and d.category == "bed":
+                st.selectbox("Free long sides", ["as the catalogue says", "both", "left", "right"],
+                             key=_k("add_access", t))
+            if d is not None:
+                st.caption(f"Catalogue size: {d.width} x {d.depth} x {d.height} mm — {d.source}")
+            else:
+                st.caption("A custom piece: enter its sizes from a tape measure.")
+            st.form_submit_button("Add to the list", on_click=_add_piece)
+    with right:
+        st.markdown("**Change a piece**")
+        if not plan.furniture:
+            st.caption("The list is empty.")
+        else:
+            ids = [p.id for p in plan.furniture]
+            if s.get("edit_piece") not in ids:
+                s["edit_piece"] = ids[0]
+            pid = st.selectbox("Piece", ids, key="edit_piece")
+            p = plan.piece(pid)
+            spec = {x.id: x for x in resolve_pieces(plan, rules)}[pid]
+            with st.form(_k("edit_form", pid), border=True):
+                st.text_input("Name", value=p.label, key=_k("ed_label", pid))
+                st.multiselect("May stand in", rooms, default=list(p.rooms),
+                               format_func=labels.get, key=_k("ed_rooms", pid))
+                c1, c2, c3 = st.columns(3)
+                c1.number_input("Width mm", 0, 20000, spec.width, step=10, key=_k("ed_w", pid))
+                c2.number_input("Depth mm", 0, 20000, spec.depth, step=10, key=_k("ed_d", pid))
+                c3.number_input("Height mm", 0, 5000, spec.height, step=10, key=_k("ed_h", pid))
+                if spec.category == "bed":
+                    opts = ["as the catalogue says", "both", "left", "right"]
+                    st.selectbox("Free long sides", opts, index=opts.index(p.access or opts[0]),
+                                 key=_k("ed_access", pid))
+                st.form_submit_button("Apply changes", on_click=_change_piece)
+            b1, b2 = st.columns(2)
+            if p.placement is None:
+                b1.caption("No place yet: keep an arrangement to lock it.")
+            else:
+                b1.button("Unlock" if p.locked else "Lock where it stands", key="lock_piece",
+                          on_click=_toggle_lock)
+            b2.button("Remove from the list", key="remove_piece", on_click=_remove_piece)
+
+
+def _rules(plan: Plan, rules: RuleSet) -> None:
+    ids = ruleset_ids()
+    sets = {i: load_ruleset(i).label for i in ids}
+    if _state().get("rule_set") != plan.rules.set:
+        _state()["rule_set"] = plan.rules.set
+    st.selectbox("Rule set that governs the client's home", ids, format_func=lambda i: sets[i],
+                 key="rule_set", on_change=_pick_ruleset)
+    st.caption(rules.description)
+    with st.form(f"override_form_{plan.rules.set}", border=True):
+        st.markdown("**Values for this client** (mm; a value equal to the set's own is not an "
+                    "override)")
+        cols = st.columns(len(page.OVERRIDABLE) + 1)
+        for col, rid in zip(cols, page.OVERRIDABLE, strict=False):
+            if not rules.has(rid):
+                continue
+            r = rules.get(rid)
+            col.number_input(r.description, 0, 5000, r.mm, step=10,
+                             key=f"ov_{plan.rules.set}_{rid}")
+            col.caption(("Overridden for this client. Set's value from: " if r.overridden
+                         else "Source: ") + r.source)
+        shape = rules.get("turning.shape")
+        shapes = ["circle", "square", "circle-or-t"]
+        cols[-1].selectbox("Turning space shape", shapes,
+                           index=shapes.index(str(shape.value)) if shape.value in shapes else 0,
+                           key=f"ov_{plan.rules.set}_turning.shape")
+        cols[-1].caption(("Overridden. " if shape.overridden else "Source: ") + shape.source)
+        st.form_submit_button("Apply values", on_click=_apply_overrides)
+    if rules.overridden:
+        st.warning("Overridden for this client: " + ", ".join(
+            f"{r.id} = {r.value} {r.unit if r.unit != 'text' else ''}".strip()
+            for r in rules.overridden))
+        st.button("Back to the set's own values", key="clear_overrides", on_click=_clear_overrides)
+    st.dataframe(page.rule_rows(rules), hide_index=True)
+
+
+def _findings(plan: Plan, rules: RuleSet) -> Any:
+    """Audit ``plan`` (its placed pieces) with the checker the CLI uses."""
+    return check.audit(plan, rules) if check is not None else None
+
+
+def _solve(plan: Plan, rules: RuleSet) -> None:
+    s = _state()
+    if solver is None:
+        _unavailable("Finding arrangements")
+        return
+    c1, c2, c3 = st.columns(3)
+    n = c1.slider("How many arrangements", 2, 4, 3, key="n_candidates")
+    limit = c2.slider("Time limit (s)", 5, 120, 20, step=5, key="time_limit")
+    seed = c3.number_input("Seed", 0, 10_000, 0, key="seed",
+                           help="The same seed and time limit give the same arrangements.")
+    if st.button("Find arrangements", key="solve", type="primary"):
+        bar = st.progress(0.0, text="Starting…")
+        t0 = time.monotonic()
+
+        def progress(msg: str) -> None:
+            bar.progress(min(0.99, (time.monotonic() - t0) / limit), text=msg)
+
+        options = solver.SolveOptions(candidates=int(n), time_limit=float(limit), seed=int(seed))
+        result = solver.solve(plan, rules, options, progress=progress)
+        bar.progress(1.0, text=f"Done in {time.monotonic() - t0:.1f} s.")
+        s["solve"] = {"result": result, "plan": plan, "time_limit": float(limit)}
+    done = s.get("solve")
+    if not done:
+        st.caption("Nothing searched yet for this plan.")
+        return
+    if done["plan"] != plan:
+        st.info("The plan has changed since these arrangements were found; search again to "
+                "include the changes.")
+    _results(done["plan"], rules_for(done["plan"]), done["result"], done["time_limit"])
+
+
+def _results(plan: Plan, rules: RuleSet, result: Any, time_limit: float) -> None:
+    outcome = page.describe_outcome(result, time_limit)
+    show = {"success": st.success, "warning": st.warning, "error": st.error}[outcome.level]
+    show(outcome.headline + ("\n\n" + "\n".join(f"- {d}" for d in outcome.details)
+                             if outcome.details else ""))
+    _caution()
+    if not result.candidates:
+        return
+    plans = [plan.with_layout(c.layout) for c in result.candidates]
+    cols = st.columns(len(plans))
+    for i, (col, cand, p) in enumerate(zip(cols, result.candidates, plans, strict=True)):
+        with col, _panel(f"arrangement {i + 1}"):
+            _candidate(i, cand, p, rules)
+    if compare is not None:
+        with _panel("comparison"):
+            st.markdown("**Side by side**")
+            table = compare.compare(plans, rules)
+            st.dataframe(_comparison_rows(table), hide_index=True)
+
+
+def _comparison_rows(table: Any) -> Any:
+    rows = getattr(table, "rows", None)
+    if rows is None:
+        return table
+    return [r if isinstance(r, dict) else getattr(r, "__dict__", r) for r in rows]
+
+
+def _candidate(i: int, cand: Any, plan: Plan, rules: RuleSet) -> None:
+    st.markdown(f"#### Arrangement {i + 1}")
+    audit = _findings(plan, rules)
+    marks = check.marks_for(audit) if audit is not None else ()
+    svg = _drawing(plan, rules, marks=marks, title=f"{plan.name} — arrangement {i + 1}")
+    m1, m2 = st.columns(2)
+    if audit is not None:
+        m1.metric("Rules passed", f"{sum(f.ok for f in audit.findings)}/{len(audit.findings)}")
+    m2.metric("Score", f"{cand.objective:g}", help="Lower is better; used to rank arrangements.")
+    if audit is not None:
+        with st.expander("Rule findings"):
+            st.dataframe(page.findings_rows(audit.findings), hide_index=True)
+    st.button("Keep this arrangement", key=f"keep_{i}", on_click=_keep, args=(i,))
+    _downloads(plan, svg, f"cand{i + 1}", f"-arrangement-{i + 1}")
+
+
+def _downloads(plan: Plan, svg: str | None, key: str, suffix: str) -> None:
+    stem = page.file_stem(plan) + suffix
+    st.download_button("Furnished plan (.toml)", dumps_plan(plan), file_name=f"{stem}.toml",
+                       mime="application/toml", key=f"dl_plan_{key}")
+    if svg is not None:
+        st.download_button("Drawing (.svg)", svg, file_name=f"{stem}.svg", mime="image/svg+xml",
+                           key=f"dl_svg_{key}")
+
+
+def _audit(plan: Plan, rules: RuleSet) -> None:
+    if check is None:
+        _unavailable("Checking an arrangement")
+        return
+    if not plan.layout:
+        st.info("No piece has a place yet. Bring a furnished plan file, or keep one of the "
+                "arrangements found, then check it here.")
+        return
+    unplaced = [p.id for p in plan.furniture if p.placement is None]
+    if unplaced:
+        st.caption("Not placed, so not checked: " + ", ".join(unplaced))
+    audit = check.audit(plan, rules)
+    fails = audit.failures
+    if fails:
+        st.error(f"{len(fails)} of {len(audit.findings)} rule checks fail. Failures are marked "
+                 "on the drawing.")
+    else:
+        st.success(f"All {len(audit.findings)} rule checks pass under {rules.label}.")
+    _caution()
+    svg = _drawing(plan, rules, marks=check.marks_for(audit), title=f"{plan.name} — as it stands")
+    st.dataframe(page.findings_rows(audit.findings), hide_index=True)
+    _downloads(plan, svg, "asis", "-as-is")
+
+
+# ---------------------------------------------------------------------------------------------
+# the page
+
+
+def main() -> None:
+    st.set_page_config(page_title="roomfit · furnish with the client", layout="wide")
+    st.markdown(_CSS, unsafe_allow_html=True)
+    _init()
+    st.title("roomfit · furnish with the client")
+    _sidebar()
+    s = _state()
+    plan: Plan | None = s["plan"]
+    if plan is None:
+        st.info("Open a bundled sample or bring a plan file to start.")
+        return
+    if s["notice"]:
+        st.success(s["notice"])
+        s["notice"] = ""
+    if s["edit_error"]:
+        st.error("That change was not made; the plan stays as it was.\n\n"
+                 + "\n\n".join(s["edit_error"]))
+    rules = rules_for(plan)
+    st.caption(f"Rule set: {rules.label}" + (f" · {len(rules.overridden)} values overridden"
+                                             if rules.overridden else ""))
+    tabs = st.tabs(["The apartment", "Furniture", "Rules", "Arrangements", "Check as it stands"])
+    with tabs[0], _panel("apartment"):
+        _overview(plan, rules)
+    with tabs[1], _panel("furniture"):
+        _furniture(plan, rules)
+    with tabs[2], _panel("rules"):
+        _rules(plan, rules)
+    with tabs[3], _panel("arrangements"):
+        _solve(plan, rules)
+    with tabs[4], _panel("check"):
+        _audit(plan, rules)
+
+
+main()

@@ -1,0 +1,322 @@
+"""What the Streamlit page (``app.py``) needs, as plain functions a test can call.
+
+The page holds layout only. Everything it shows or changes goes through these functions,
+which call the same library functions as the ``roomfit`` command: reading a plan file,
+resolving pieces against the catalogue and the rule set, auditing, solving, drawing.
+
+Edits to the furniture list and the rule choice return a *new* :class:`~roomfit.plan.Plan`
+and are validated by writing the plan to plan-file text and reading it back with
+:func:`~roomfit.planfile.loads_plan`, so a bad value in the page gets exactly the message
+(field path and what is wrong) that the same value in a plan file would get; the old plan is
+kept until an edit is valid.
+
+>>> from roomfit.plan import Plan, Room
+>>> p = Plan("demo", (Room("r", "Room", "living", ((0, 0), (3000, 0), (3000, 3000), (0, 3000))),))
+>>> p = add_piece(p, "nightstand", ("r",))
+>>> [x.id for x in p.furniture]
+['nightstand-1']
+"""
+
+from __future__ import annotations
+
+import importlib
+from collections.abc import Sequence
+from dataclasses import dataclass, replace
+from pathlib import Path
+from types import ModuleType
+from typing import Any
+
+from roomfit.catalog import load_catalog, resolve_pieces
+from roomfit.errors import PlanError, Problem, RoomfitError
+from roomfit.plan import Layout, Piece, Placement, Plan, RuleChoice
+from roomfit.planfile import dumps_plan, loads_plan
+from roomfit.rules import RuleSet, load_ruleset
+from roomfit.units import format_length
+
+__all__ = [
+    "EDITED_SOURCE",
+    "OVERRIDABLE",
+    "Outcome",
+    "optional_module",
+    "sample_files",
+    "plan_from_upload",
+    "error_lines",
+    "validated",
+    "type_choices",
+    "new_piece_id",
+    "add_piece",
+    "update_piece",
+    "remove_piece",
+    "lock_piece",
+    "keep_layout",
+    "with_rule_choice",
+    "piece_rows",
+    "rule_rows",
+    "findings_rows",
+    "describe_outcome",
+    "file_stem",
+]
+
+#: Name under which problems in an edited (not yet saved) plan are reported.
+EDITED_SOURCE = "plan edited on the page"
+
+#: Rule values the page offers to override directly, in the order shown. Any other rule can
+#: still be overridden in the plan file's ``[rules.overrides]`` table.
+OVERRIDABLE = ("route.width", "turning.size", "door.min_width")
+
+
+def optional_module(name: str) -> ModuleType | None:
+    """Import ``roomfit.<name>`` if it exists and loads; None otherwise.
+
+    The page shows a "not available" note for a panel whose module is missing, instead of
+    failing as a whole.
+    """
+    try:
+        return importlib.import_module(f"roomfit.{name}")
+    except Exception:  # noqa: BLE001 - a missing or broken stage must not take the page down
+        return None
+
+
+def sample_files(folder: str | Path) -> list[Path]:
+    """The bundled sample plans (``*.toml``) in ``folder``, sorted by name."""
+    return sorted(Path(folder).glob("*.toml"))
+
+
+def plan_from_upload(name: str, data: bytes) -> Plan:
+    """Read an uploaded plan file's bytes; problems name the uploaded file's ``name``."""
+    try:
+        text = data.decode("utf-8")
+    except UnicodeDecodeError as e:
+        raise PlanError(Problem("", f"not UTF-8 text (byte {e.start})",
+                                "upload a roomfit plan file (.toml, plain text)"), name) from None
+    return loads_plan(text, name)
+
+
+def error_lines(err: RoomfitError) -> list[str]:
+    """One line per problem: file, field path, what is wrong and the hint."""
+    return [p.render(err.source) for p in err.problems]
+
+
+def validated(plan: Plan) -> Plan:
+    """``plan`` after a round trip through plan-file text: the plan reader's checks apply.
+
+    Raises :class:`PlanError` naming :data:`EDITED_SOURCE` and the field path.
+    """
+    return loads_plan(dumps_plan(plan), EDITED_SOURCE)
+
+
+def type_choices() -> list[tuple[str, str]]:
+    """(type id, label) of every catalogue type, then ``custom``, for a picker."""
+    cat = load_catalog()
+    return [(t.id, t.label) for t in cat.values()] + [("custom", "Custom size")]
+
+
+def new_piece_id(plan: Plan, base: str) -> str:
+    """A piece id not used anywhere in ``plan``: ``base-1``, ``base-2``, ..."""
+    used = ({r.id for r in plan.rooms} | {d.id for d in plan.doors} | {w.id for w in plan.windows}
+            | {f.id for f in plan.fixtures} | {p.id for p in plan.furniture})
+    n = 1
+    while f"{base}-{n}" in used:
+        n += 1
+    return f"{base}-{n}"
+
+
+def _sizes(type_id: str, width: int | None, depth: int | None,
+           height: int | None) -> tuple[int | None, int | None, int | None]:
+    """Sizes to store for a piece: for a catalogue type, None (or the catalogue's own value)
+    means "the catalogue's size" and is stored as None; a custom piece keeps what is given
+    (the plan reader then says which size is missing or not positive)."""
+    given = (width, depth, height)
+    if type_id == "custom":
+        return tuple(None if v is None else int(v) for v in given)  # type: ignore[return-value]
+    t = load_catalog().get(type_id)
+    defaults = (t.width, t.depth, t.height) if t is not None else (None, None, None)
+    return tuple(None if v is None or int(v) == d else int(v)  # type: ignore[return-value]
+                 for v, d in zip(given, defaults, strict=True))
+
+
+def add_piece(plan: Plan, type_id: str, rooms: Sequence[str], label: str = "",
+              width: int | None = None, depth: int | None = None, height: int | None = None,
+              access: str | None = None) -> Plan:
+    """``plan`` with one more piece (not placed). Sizes left None take the catalogue's.
+
+    Raises :class:`PlanError` (field path ``furniture[i]...``) for an unknown type, no
+    room, an unknown room, a size that is not positive or a custom piece without all three.
+    """
+    if not rooms:
+        raise PlanError(Problem(f"furniture[{len(plan.furniture)}].rooms",
+                                "pick at least one room the piece may stand in"), EDITED_SOURCE)
+    base = "piece" if type_id == "custom" else type_id
+    w, d, h = _sizes(type_id, width, depth, height)
+    piece = Piece(new_piece_id(plan, base), type_id, tuple(rooms), label.strip(), w, d, h,
+                  access=access or None)
+    return validated(replace(plan, furniture=(*plan.furniture, piece)))
+
+
+def _index(plan: Plan, piece_id: str) -> int:
+    for i, p in enumerate(plan.furniture):
+        if p.id == piece_id:
+            return i
+    raise PlanError(Problem("furniture", f"no piece with id {piece_id!r}"), EDITED_SOURCE)
+
+
+def _with_piece(plan: Plan, i: int, piece: Piece) -> Plan:
+    pieces = list(plan.furniture)
+    pieces[i] = piece
+    return validated(replace(plan, furniture=tuple(pieces)))
+
+
+def update_piece(plan: Plan, piece_id: str, *, label: str, rooms: Sequence[str],
+                 width: int | None, depth: int | None, height: int | None,
+                 access: str | None = None) -> Plan:
+    """``plan`` with one piece's name, rooms, sizes and bed access changed (sizes as in
+    :func:`add_piece`). If the piece stands in a room it may no longer use, its placement
+    and lock are dropped."""
+    i = _index(plan, piece_id)
+    p = plan.furniture[i]
+    if not rooms:
+        raise PlanError(Problem(f"furniture[{i}].rooms",
+                                "pick at least one room the piece may stand in"), EDITED_SOURCE)
+    placement, locked = p.placement, p.locked
+    if placement is not None and placement.room not in rooms:
+        placement, locked = None, False
+    w, d, h = _sizes(p.type, width, depth, height)
+    new = replace(p, label=label.strip(), rooms=tuple(rooms), width=w, depth=d, height=h,
+                  access=access or None, placement=placement, locked=locked)
+    return _with_piece(plan, i, new)
+
+
+def remove_piece(plan: Plan, piece_id: str) -> Plan:
+    """``plan`` without the piece. Routine trips to or from it are dropped too (a trip to a
+    piece that no longer exists would make the plan invalid)."""
+    _index(plan, piece_id)
+    pieces = tuple(p for p in plan.furniture if p.id != piece_id)
+    trips = tuple(t for t in plan.routines if piece_id not in (t.origin, t.target))
+    return validated(replace(plan, furniture=pieces, routines=trips))
+
+
+def lock_piece(plan: Plan, piece_id: str, locked: bool, placement: Placement | None = None) -> Plan:
+    """Lock a piece where it stands (or at ``placement``), or unlock it.
+
+    Locking a piece that has no placement and gets none raises :class:`PlanError`.
+    """
+    i = _index(plan, piece_id)
+    p = plan.furniture[i]
+    where = placement or p.placement
+    if locked and where is None:
+        raise PlanError(Problem(f"furniture[{i}].locked",
+                                f"{p.label or p.id} has no place yet, so it cannot be locked",
+                                "keep an arrangement first, then lock pieces in it"),
+                        EDITED_SOURCE)
+    return _with_piece(plan, i, replace(p, placement=where, locked=locked))
+
+
+def keep_layout(plan: Plan, layout: Layout) -> Plan:
+    """``plan`` with every piece placed as in ``layout`` (locks are kept)."""
+    return validated(plan.with_layout(layout))
+
+
+def with_rule_choice(plan: Plan, set_id: str, overrides: dict[str, int | str]) -> Plan:
+    """``plan`` governed by rule set ``set_id`` with ``overrides`` (rule id -> mm or word).
+
+    Raises :class:`~roomfit.errors.RuleError` for an unknown set, rule or bad value.
+    """
+    load_ruleset(set_id, overrides)
+    choice = RuleChoice(set_id, tuple(sorted(overrides.items())))
+    return validated(plan.with_rules(choice))
+
+
+def _mm(v: int | None, unit: str) -> str:
+    return "" if v is None else format_length(v, unit) if unit != "mm" else f"{v} mm"
+
+
+def piece_rows(plan: Plan, rules: RuleSet) -> list[dict[str, Any]]:
+    """One row per piece for the furniture table: sizes as resolved (catalogue or custom)."""
+    specs = {s.id: s for s in resolve_pieces(plan, rules)}
+    rows = []
+    for p in plan.furniture:
+        s = specs[p.id]
+        pl = p.placement
+        rows.append({
+            "id": p.id,
+            "name": s.label,
+            "type": p.type,
+            "size (w x d x h, mm)": f"{s.width} x {s.depth} x {s.height}",
+            "own size": any(v is not None for v in (p.width, p.depth, p.height)),
+            "may stand in": ", ".join(p.rooms),
+            "placed": "" if pl is None else f"{pl.room} at ({pl.x}, {pl.y}), {pl.rotation} deg",
+            "locked": p.locked,
+        })
+    return rows
+
+
+def rule_rows(rules: RuleSet) -> list[dict[str, Any]]:
+    """One row per rule: value as the source states it, in mm, the source and its status."""
+    rows = []
+    for r in rules.rules:
+        value = r.value if r.unit == "text" else f"{r.value:g} {r.unit}"
+        rows.append({
+            "rule": r.id,
+            "what": r.description,
+            "value": str(value),
+            "mm": "" if r.unit == "text" else str(r.mm),
+            "source": r.source,
+            "status": "overridden for this client" if r.overridden else r.status,
+        })
+    return rows
+
+
+def findings_rows(findings: Sequence[Any]) -> list[dict[str, Any]]:
+    """One row per audit finding (``check.Finding``), failures first."""
+    ordered = sorted(findings, key=lambda f: f.ok)
+    return [{
+        "result": "pass" if f.ok else "FAIL",
+        "rule": f.rule,
+        "finding": f.message,
+        "measured": "" if f.measured is None else f"{f.measured:.0f}",
+        "required": "" if f.required is None else f"{f.required:.0f}",
+        "pieces": ", ".join(f.pieces),
+        "room": f.room or "",
+        "source": f.source,
+    } for f in ordered]
+
+
+@dataclass(frozen=True)
+class Outcome:
+    """How the page reports a solve: ``level`` is ``success``, ``warning`` or ``error``."""
+
+    level: str
+    headline: str
+    details: tuple[str, ...] = ()
+
+
+def describe_outcome(result: Any, time_limit: float) -> Outcome:
+    """Plain words for a ``solver.SolveResult``: how many found, or why none.
+
+    ``impossible`` gives the explanation's summary and its fixes; ``timeout`` says the
+    furniture is *not* proven not to fit.
+    """
+    n = len(result.candidates)
+    ex = result.explanation
+    fixes = tuple(f"Try: {f}" for f in ex.fixes) if ex is not None else ()
+    if result.status in ("found", "optimal") and n:
+        best = " (the first is the best possible for the scoring used)" \
+            if result.status == "optimal" else ""
+        return Outcome("success", f"{n} arrangement{'s' if n != 1 else ''} found{best}.")
+    if result.status == "impossible":
+        summary = ex.summary if ex is not None else "The furniture cannot fit under these rules."
+        return Outcome("error", f"No arrangement exists: {summary}", fixes)
+    if result.status == "timeout" and n:
+        return Outcome("warning", f"{n} arrangement{'s' if n != 1 else ''} found before the "
+                       f"time limit of {time_limit:g} s; better ones may exist.")
+    return Outcome("warning", f"No arrangement found within {time_limit:g} s. This does not "
+                   "prove that the furniture cannot fit: allow more time, or remove or lock "
+                   "a piece and try again.", fixes)
+
+
+def file_stem(plan: Plan) -> str:
+    """A safe file name stem from the plan's name (letters, digits and dashes)."""
+    stem = "".join(c.lower() if c.isalnum() else "-" for c in plan.name).strip("-")
+    while "--" in stem:
+        stem = stem.replace("--", "-")
+    return stem[:60] or "plan"
