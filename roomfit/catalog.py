@@ -58,6 +58,14 @@ class FurnitureType:
     zones: tuple[tuple[str, str], ...]
     relations: tuple[tuple[str, str], ...]
     source: str
+    #: Gap (mm) to the target of a ``beside_head`` or ``in_front`` relation; 0, 0: none.
+    gap_min: int = 0
+    gap_max: int = 0
+    #: Distance from this seat's front to a ``facing`` TV's front, in screen diagonals.
+    view_min: float = 0.0
+    view_max: float = 0.0
+    #: Diagonal (mm) of the screen a TV unit carries; 0 when none.
+    screen: int = 0
 
 
 @dataclass(frozen=True)
@@ -87,6 +95,11 @@ class PieceSpec:
     zones: tuple[ZoneReq, ...]
     relations: tuple[tuple[str, str], ...]
     rooms: tuple[str, ...]
+    gap_min: int = 0
+    gap_max: int = 0
+    view_min: float = 0.0
+    view_max: float = 0.0
+    screen: int = 0
 
     @property
     def tall(self) -> bool:
@@ -110,6 +123,11 @@ def load_catalog() -> dict[str, FurnitureType]:
             zones=tuple((side, kind) for side, kind in raw.get("zones", {}).items()),
             relations=tuple((r["relation"], r["target"]) for r in raw.get("relations", [])),
             source=raw["source"],
+            gap_min=int(raw.get("gap_min", 0)),
+            gap_max=int(raw.get("gap_max", 0)),
+            view_min=float(raw.get("view_min", 0.0)),
+            view_max=float(raw.get("view_max", 0.0)),
+            screen=int(raw.get("screen", 0)),
         )
     return out
 
@@ -163,6 +181,11 @@ def resolve_piece(
         zones=reqs,
         relations=t.relations,
         rooms=piece.rooms,
+        gap_min=t.gap_min,
+        gap_max=t.gap_max,
+        view_min=t.view_min,
+        view_max=t.view_max,
+        screen=t.screen,
     )
 
 

@@ -30,6 +30,7 @@ Rule ids every set defines (see ``docs/rules.md`` for their meaning):
 from __future__ import annotations
 
 import tomllib
+from collections.abc import Iterable
 from dataclasses import dataclass, replace
 from fractions import Fraction
 from importlib import resources
@@ -42,7 +43,9 @@ __all__ = [
     "RuleSet",
     "STATUSES",
     "REQUIRED_RULES",
+    "TURNING_SHAPES",
     "ruleset_ids",
+    "ruleset_problems",
     "load_ruleset",
     "rules_for",
 ]
@@ -64,6 +67,9 @@ REQUIRED_RULES = (
 )
 
 TURNING_SHAPES = ("circle", "square", "circle-or-t")
+
+#: Rules whose value is a word, not a length.
+_TEXT_RULES = ("turning.shape",)
 
 
 @dataclass(frozen=True)
@@ -153,22 +159,84 @@ def _parse_rule(rule_id: str, raw: object, where: str) -> Rule:
                 raw["status"])
 
 
-def load_ruleset(name: str, overrides: dict[str, int | str] | None = None) -> RuleSet:
-    """Load a bundled rule set by id and apply ``overrides`` (rule id -> mm).
+def _catalog_zone_kinds() -> tuple[str, ...]:
+    """Zone kinds the bundled catalogue uses (read from its data file: the catalogue module
+    imports this one, not the other way round)."""
+    path = resources.files("roomfit") / "data" / "catalog.toml"
+    data = tomllib.loads(path.read_text(encoding="utf-8"))
+    kinds = {k for t in data.get("types", {}).values() for k in t.get("zones", {}).values()}
+    return tuple(sorted(kinds))
 
-    Raises :class:`RuleError` for an unknown set (listing the known ones), an unknown rule id
-    in ``overrides`` or a negative override.
+
+def ruleset_problems(rs: RuleSet, zone_kinds: Iterable[str] = ()) -> list[Problem]:
+    """Everything wrong with a rule set, as problems (empty when it is sound).
+
+    Checks that every id of :data:`REQUIRED_RULES` and ``zone.<kind>`` for every kind in
+    ``zone_kinds`` is present, that no other id is (a typo would otherwise go unnoticed),
+    that descriptions and sources are not empty, statuses and units known, lengths numbers
+    of 0 or more, ``turning.shape`` one of :data:`TURNING_SHAPES`, and that the pinch width
+    does not exceed the route width.
+    """
+    where = f"{rs.id}.rules"
+    hint = f"every rule set defines {', '.join(REQUIRED_RULES)} and zone.<kind> per zone kind"
+    problems: list[Problem] = []
+    have = {r.id for r in rs.rules}
+    for rid in (*REQUIRED_RULES, *(f"zone.{k}" for k in zone_kinds)):
+        if rid not in have:
+            problems.append(Problem(f"{where}.{rid}", f"rule {rid!r} is missing", hint))
+    for r in rs.rules:
+        field = f"{where}.{r.id}"
+        if r.id not in REQUIRED_RULES and not r.id.startswith("zone."):
+            problems.append(Problem(field, f"unknown rule id {r.id!r}", hint))
+        for name in ("description", "source"):
+            if not str(getattr(r, name)).strip():
+                problems.append(Problem(f"{field}.{name}", f"empty {name}"))
+        if r.status not in STATUSES:
+            problems.append(Problem(f"{field}.status", f"unknown status {r.status!r}",
+                                    f"use one of {', '.join(STATUSES)}"))
+        if r.id in _TEXT_RULES:
+            if r.unit != "text" or r.value not in TURNING_SHAPES:
+                problems.append(Problem(f"{field}.value", f"unknown shape {r.value!r}",
+                                        f"use one of {', '.join(TURNING_SHAPES)} with unit text"))
+        elif (r.unit not in MM_PER or isinstance(r.value, bool)
+              or not isinstance(r.value, int | float) or r.value < 0):
+            problems.append(Problem(field, f"expected a length of 0 or more in mm or in, found "
+                                           f"{r.value!r} {r.unit}"))
+    if not problems and rs.mm("route.pinch_width") > rs.mm("route.width"):
+        problems.append(Problem(f"{where}.route.pinch_width",
+                                f"pinch width {rs.mm('route.pinch_width')} mm is wider than the "
+                                f"route width {rs.mm('route.width')} mm",
+                                "repeat route.width when the set allows no pinch"))
+    return problems
+
+
+def load_ruleset(name: str, overrides: dict[str, int | str] | None = None) -> RuleSet:
+    """Load a bundled rule set by id, check it, and apply ``overrides`` (rule id -> mm).
+
+    Raises :class:`RuleError` for an unknown set (listing the known ones), a set that fails
+    :func:`ruleset_problems` against the catalogue's zone kinds, an unknown rule id in
+    ``overrides`` or a negative override.
     """
     known = ruleset_ids()
     if name not in known:
         raise RuleError(Problem("rules.set", f"unknown rule set {name!r}",
                                 f"use one of {', '.join(known)}"))
     path = resources.files("roomfit") / "data" / "rules" / f"{name}.toml"
-    data = tomllib.loads(path.read_text(encoding="utf-8"))
+    try:
+        data = tomllib.loads(path.read_text(encoding="utf-8"))
+    except tomllib.TOMLDecodeError as e:
+        raise RuleError(Problem(f"{name}.toml", f"not valid TOML: {e}")) from None
+    head = [Problem(f"{name}.{k}", f"missing {k}") for k in ("label", "description", "rules")
+            if k not in data]
+    if head:
+        raise RuleError(head)
     rules = tuple(
         _parse_rule(rid, raw, f"{name}.rules.{rid}") for rid, raw in data["rules"].items()
     )
     rs = RuleSet(name, data["label"], data["description"], rules)
+    problems = ruleset_problems(rs, _catalog_zone_kinds())
+    if problems:
+        raise RuleError(problems)
     if overrides:
         rs = _apply_overrides(rs, overrides)
     return rs
