@@ -35,6 +35,8 @@ __all__ = [
     "footprint_box",
     "zone_polygon",
     "use_zones",
+    "wall_direction",
+    "door_leaf",
     "door_shape",
     "door_shapes",
     "window_segment",
@@ -168,6 +170,64 @@ def _rect_from(at: tuple[float, float], u: tuple[float, float], n: tuple[float, 
                     (a[0] + n[0] * depth, a[1] + n[1] * depth)])
 
 
+def wall_direction(outline: tuple[tuple[int, int], ...], point: tuple[int, int]) -> tuple[float, float]:
+    """Unit vector along the outline edge nearest ``point``, in the outline's vertex order.
+
+    >>> wall_direction(((0, 0), (4000, 0), (4000, 3000), (0, 3000)), (2000, 0))
+    (1.0, 0.0)
+    """
+    i, _ = nearest_edge(outline, point)
+    (x0, y0), (x1, y1) = outline[i], outline[(i + 1) % len(outline)]
+    length = math.hypot(x1 - x0, y1 - y0)
+    return ((x1 - x0) / length, (y1 - y0) / length)
+
+
+def _door_frame(plan: Plan, door: Door) -> tuple[tuple[float, float], tuple[float, float],
+                                                  tuple[float, float]]:
+    """Centre of the opening, unit vector along its wall and unit normal into ``rooms[0]``."""
+    host = plan.room(door.rooms[0])
+    u = wall_direction(host.outline, door.at)
+    at = (float(door.at[0]), float(door.at[1]))
+    return at, u, _inward_normal(Polygon(host.outline), at, u)
+
+
+def _hinge(door: Door, at: tuple[float, float],
+           n: tuple[float, float]) -> tuple[tuple[float, float], tuple[float, float]]:
+    """Hinge point and the closed leaf's direction from it, for a leaf swinging along ``n``.
+
+    ``door.hinge`` is seen standing on the swing side facing the door (facing ``-n``).
+    """
+    half = door.width / 2
+    f = (-n[0], -n[1])  # facing the door from the side it swings into
+    left = (-f[1], f[0])
+    sign = 1 if door.hinge == "left" else -1
+    hinge = (at[0] + sign * left[0] * half, at[1] + sign * left[1] * half)
+    return hinge, (-sign * left[0], -sign * left[1])
+
+
+def door_leaf(plan: Plan, door: Door) -> tuple[tuple[float, float],
+                                               tuple[tuple[float, float], ...]] | None:
+    """Hinge point and the arc the free edge of a hinged leaf sweeps, closed to open (90 deg).
+
+    Unlike :func:`door_shape` this works on whichever side the leaf swings, outside
+    included (drawings and exports show every leaf). ``Polygon([hinge, *arc])`` is the swept
+    quarter disc. None for sliding leaves and doorways.
+
+    >>> p = Plan("t", (Room("r", "R", "hall", ((0, 0), (2000, 0), (2000, 2000), (0, 2000))),),
+    ...          (Door("d", ("r", OUTSIDE), (1000, 0), 900, Leaf.HINGED, "r", "left"),))
+    >>> hinge, arc = door_leaf(p, p.doors[0])
+    >>> hinge, [tuple(round(c) for c in arc[k]) for k in (0, -1)]  # facing south, left is east
+    ((1450.0, 0.0), [(550, 0), (1450, 900)])
+    """
+    if door.leaf != Leaf.HINGED:
+        return None
+    at, _, n0 = _door_frame(plan, door)
+    n = n0 if door.swings_into == door.rooms[0] else (-n0[0], -n0[1])
+    hinge, closed = _hinge(door, at, n)
+    disc = _quarter_disc(hinge, closed, n, door.width)
+    return hinge, tuple(disc.exterior.coords)[1:-1]
+
+
 def door_shape(plan: Plan, door: Door, rules: RuleSet) -> DoorShape:
     """Opening, swing sector and approach floor of ``door`` under ``rules``.
 
@@ -178,16 +238,10 @@ def door_shape(plan: Plan, door: Door, rules: RuleSet) -> DoorShape:
     both sides (2010 ADA Table 404.2.4.2 asks the same depth on both sides of a sliding door).
     """
     polys = room_polygons(plan)
-    host = plan.room(door.rooms[0])
-    i, _ = nearest_edge(host.outline, door.at)
-    (x0, y0), (x1, y1) = host.outline[i], host.outline[(i + 1) % len(host.outline)]
-    length = math.hypot(x1 - x0, y1 - y0)
-    u = ((x1 - x0) / length, (y1 - y0) / length)
-    at = (float(door.at[0]), float(door.at[1]))
+    at, u, n0 = _door_frame(plan, door)
     half = door.width / 2
     opening = LineString([(at[0] - u[0] * half, at[1] - u[1] * half),
                           (at[0] + u[0] * half, at[1] + u[1] * half)])
-    n0 = _inward_normal(polys[door.rooms[0]], at, u)
     inward = {door.rooms[0]: n0}
     if door.rooms[1] != OUTSIDE:
         inward[door.rooms[1]] = (-n0[0], -n0[1])
@@ -196,11 +250,7 @@ def door_shape(plan: Plan, door: Door, rules: RuleSet) -> DoorShape:
     other_depth = rules.mm("door.approach_other")
     for rid, n in inward.items():
         if door.leaf == Leaf.HINGED and door.swings_into == rid:
-            f = (-n[0], -n[1])  # facing the door from inside the room
-            left = (-f[1], f[0])
-            sign = 1 if door.hinge == "left" else -1
-            hinge = (at[0] + sign * left[0] * half, at[1] + sign * left[1] * half)
-            closed = (-sign * left[0], -sign * left[1])
+            hinge, closed = _hinge(door, at, n)
             swing = _quarter_disc(hinge, closed, n, door.width)
             depth = max(rules.mm("door.approach_swing"), door.width)
             latch = rules.mm("door.approach_latch")
@@ -223,11 +273,7 @@ def door_shapes(plan: Plan, rules: RuleSet) -> list[DoorShape]:
 
 def window_segment(plan: Plan, window: Window) -> LineString:
     """The window opening on its wall."""
-    room = plan.room(window.room)
-    i, _ = nearest_edge(room.outline, window.at)
-    (x0, y0), (x1, y1) = room.outline[i], room.outline[(i + 1) % len(room.outline)]
-    length = math.hypot(x1 - x0, y1 - y0)
-    u = ((x1 - x0) / length, (y1 - y0) / length)
+    u = wall_direction(plan.room(window.room).outline, window.at)
     h = window.width / 2
     return LineString([(window.at[0] - u[0] * h, window.at[1] - u[1] * h),
                        (window.at[0] + u[0] * h, window.at[1] + u[1] * h)])
