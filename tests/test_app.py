@@ -1,0 +1,241 @@
+"""The Streamlit page (app.py) driven by streamlit's AppTest, and roomfit.page's functions.
+
+The page must keep running whatever the user does: a bad upload or a bad value gives a
+message that names the file and the field, and the plan and what was typed stay.
+"""
+
+from __future__ import annotations
+
+import re
+from pathlib import Path
+
+import pytest
+from streamlit.testing.v1 import AppTest
+
+from roomfit import page
+from roomfit.errors import PlanError, RuleError
+from roomfit.planfile import dumps_plan, loads_plan, read_plan
+from roomfit.rules import load_ruleset, rules_for
+
+ROOT = Path(__file__).resolve().parent.parent
+APP = str(ROOT / "app.py")
+STUDIO = ROOT / "plans" / "studio.toml"
+
+
+def _app() -> AppTest:
+    at = AppTest.from_file(APP, default_timeout=60)
+    at.run()
+    assert not at.exception, at.exception
+    return at
+
+
+def _click(at: AppTest, label: str) -> None:
+    """Click the (form submit) button with this label and run the page again."""
+    matches = [b for b in at.button if b.label == label]
+    assert matches, f"no button {label!r}: {[b.label for b in at.button]}"
+    matches[0].click()
+    at.run()
+    assert not at.exception, at.exception
+
+
+def _errors(at: AppTest) -> str:
+    return "\n".join(e.value for e in at.error)  # the sidebar's included
+
+
+# --- roomfit.page -----------------------------------------------------------------------------
+
+
+def test_upload_of_non_utf8_bytes_names_the_file() -> None:
+    with pytest.raises(PlanError, match=r"bad\.toml: not UTF-8 text \(byte 0\)"):
+        page.plan_from_upload("bad.toml", b"\xff\xfe roomfit")
+
+
+def test_upload_round_trips_a_sample() -> None:
+    plan = read_plan(STUDIO)
+    assert page.plan_from_upload("studio.toml", STUDIO.read_bytes()) == plan
+
+
+def test_add_piece_takes_catalogue_size_and_custom_needs_all_sizes() -> None:
+    plan = read_plan(STUDIO)
+    rules = rules_for(plan)
+    more = page.add_piece(plan, "nightstand", ("main",))
+    assert more.furniture[-1].id == "nightstand-1"
+    assert more.furniture[-1].width is None  # the catalogue's size, not copied
+    row = page.piece_rows(more, rules)[-1]
+    assert row["size (w x d x h, mm)"] == "455 x 455 x 600"  # US planning list 18 x 18 in [S6]
+    n = len(plan.furniture)
+    with pytest.raises(PlanError, match=rf"furniture\[{n}\]\.width: must be greater than 0"):
+        page.add_piece(plan, "custom", ("main",), "Shoe rack", 0, 300, 900)
+    ok = page.add_piece(plan, "custom", ("main", "hall"), "Shoe rack", 800, 300, 900)
+    assert ok.furniture[-1].rooms == ("main", "hall")
+    assert (ok.furniture[-1].width, ok.furniture[-1].depth) == (800, 300)
+
+
+def test_update_piece_drops_a_place_in_a_room_no_longer_allowed() -> None:
+    plan = page.add_piece(read_plan(STUDIO), "custom", ("main", "hall"), "Rack", 800, 300, 900)
+    pid = plan.furniture[-1].id
+    layout = ((pid, plan.furniture[0].placement.__class__(3000, 2100, 0, "main")),)
+    placed = page.lock_piece(page.keep_layout(plan, layout), pid, True)
+    assert placed.piece(pid).locked
+    moved = page.update_piece(placed, pid, label="Rack", rooms=("hall",), width=800, depth=300,
+                              height=900)
+    assert moved.piece(pid).placement is None and not moved.piece(pid).locked
+
+
+def test_lock_needs_a_place_and_remove_drops_routine_trips() -> None:
+    plan = page.add_piece(read_plan(STUDIO), "desk", ("main",))
+    with pytest.raises(PlanError, match="has no place yet"):
+        page.lock_piece(plan, "desk-1", True)
+    studio = read_plan(STUDIO)
+    assert any("bed" in (t.origin, t.target) for t in studio.routines)
+    without = page.remove_piece(studio, "bed")
+    assert "bed" not in [p.id for p in without.furniture]
+    assert all("bed" not in (t.origin, t.target) for t in without.routines)
+
+
+def test_rule_choice_with_override_is_reported_as_overridden() -> None:
+    plan = page.with_rule_choice(read_plan(STUDIO), "ada-2010", {"route.width": 1000})
+    rows = {r["rule"]: r for r in page.rule_rows(rules_for(plan))}
+    assert rows["route.width"]["mm"] == "1000"
+    assert rows["route.width"]["status"] == "overridden for this client"
+    assert rows["turning.size"]["mm"] == "1524"  # 2010 ADA §304.3.1: 60 in
+    with pytest.raises(RuleError, match="no rule 'route.nope'"):
+        page.with_rule_choice(plan, "ada-2010", {"route.nope": 5})
+
+
+def test_new_piece_id_avoids_every_id_in_the_plan() -> None:
+    plan = read_plan(STUDIO)
+    used = {p.id for p in plan.furniture} | {f.id for f in plan.fixtures}
+    assert page.new_piece_id(plan, "wc") not in used
+    assert page.file_stem(plan) == "studio-14-larchmere-row-flat-3"
+
+
+# --- the page ---------------------------------------------------------------------------------
+
+
+def test_page_opens_the_studio_sample_with_room_areas() -> None:
+    at = _app()
+    assert at.subheader[0].value == read_plan(STUDIO).name
+    rooms = at.dataframe[0].value
+    areas = dict(zip(rooms["room"], rooms["area (m²)"], strict=True))
+    # by hand: main room 5.4 m x 4.6 m = 24.84 m2; hall 1.4 x 2.0 = 2.8 m2
+    assert areas["main"] == pytest.approx(24.84)
+    assert areas["hall"] == pytest.approx(2.8)
+    furniture = at.dataframe[1].value
+    assert list(furniture["id"]) == [p.id for p in read_plan(STUDIO).furniture]
+
+
+def test_page_opens_another_sample() -> None:
+    at = _app()
+    others = [p for p in page.sample_files(ROOT / "plans") if p.name != "studio.toml"]
+    if not others:
+        pytest.skip("only one sample plan")
+    at.sidebar.selectbox(key="sample_choice").set_value(others[0].name)
+    _click(at, "Open this sample")
+    assert at.subheader[0].value == read_plan(others[0]).name
+
+
+@pytest.mark.parametrize(("name", "data", "expect"), [
+    ("broken.toml", b"roomfit_plan = 1\nname = = 'x'\nunits = 'mm'\n",
+     r"broken\.toml:2:\d+: not a valid TOML file"),
+    ("flat.toml", b"roomfit_plan = 1\nname='x'\n[[rooms]]\nid='a'\nuse='living'\n"
+     b"outline=[[0,0],[10,0]]\n", r"flat\.toml: rooms\[0\]\.outline: expected a list of at least 3"),
+    ("binary.toml", b"\x89PNG\r\n\x1a\n", r"binary\.toml: not UTF-8 text"),
+])
+def test_bad_upload_gives_a_message_and_keeps_the_plan(name: str, data: bytes, expect: str) -> None:
+    at = _app()
+    before = at.session_state["plan"]
+    at.sidebar.file_uploader[0].set_value((name, data, "application/toml"))
+    at.run()
+    assert not at.exception
+    assert re.search(expect, _errors(at)), _errors(at)
+    assert at.session_state["plan"] == before
+    assert at.subheader[0].value == before.name  # the page still shows the plan
+
+
+def test_good_upload_replaces_the_plan() -> None:
+    at = _app()
+    text = STUDIO.read_text().replace('name = "Studio, 14 Larchmere Row, flat 3"',
+                                      'name = "Uploaded studio"')
+    at.sidebar.file_uploader[0].set_value(("mine.toml", text.encode(), "application/toml"))
+    at.run()
+    assert not at.exception and not _errors(at)
+    assert at.subheader[0].value == "Uploaded studio"
+
+
+def test_bad_custom_size_names_the_field_and_keeps_what_was_typed() -> None:
+    at = _app()
+    at.selectbox(key="add_type").set_value("custom")
+    at.run()
+    gen = at.session_state["gen"]
+    at.text_input(key=f"add_label_{gen}_custom").input("Shoe rack")
+    at.number_input(key=f"add_d_{gen}_custom").set_value(300)
+    at.number_input(key=f"add_h_{gen}_custom").set_value(900)
+    n = len(at.session_state["plan"].furniture)
+    _click(at, "Add to the list")  # width left at 0
+    assert f"furniture[{n}].width: must be greater than 0" in _errors(at)
+    assert len(at.session_state["plan"].furniture) == n
+    assert at.text_input(key=f"add_label_{gen}_custom").value == "Shoe rack"
+    assert at.number_input(key=f"add_d_{gen}_custom").value == 300
+    at.number_input(key=f"add_w_{gen}_custom").set_value(800)
+    _click(at, "Add to the list")
+    plan = at.session_state["plan"]
+    assert len(plan.furniture) == n + 1 and plan.furniture[-1].label == "Shoe rack"
+    assert not _errors(at)
+    assert "Shoe rack" in list(at.dataframe[1].value["name"])
+
+
+def test_change_and_remove_a_piece() -> None:
+    at = _app()
+    gen = at.session_state["gen"]
+    at.selectbox(key="edit_piece").set_value("sofa")
+    at.run()
+    at.number_input(key=f"ed_w_{gen}_sofa").set_value(2400)
+    _click(at, "Apply changes")
+    assert at.session_state["plan"].piece("sofa").width == 2400
+    _click(at, "Remove from the list")
+    assert "sofa" not in [p.id for p in at.session_state["plan"].furniture]
+    assert "sofa" not in list(at.dataframe[1].value["id"])
+
+
+def test_lock_a_placed_piece() -> None:
+    at = _app()
+    at.selectbox(key="edit_piece").set_value("bed")
+    at.run()
+    _click(at, "Lock where it stands")
+    bed = at.session_state["plan"].piece("bed")
+    assert bed.locked and bed.placement == read_plan(STUDIO).piece("bed").placement
+    _click(at, "Unlock")
+    assert not at.session_state["plan"].piece("bed").locked
+
+
+def test_rule_set_and_override_with_sources() -> None:
+    at = _app()
+    at.selectbox(key="rule_set").set_value("ada-2010")
+    at.run()
+    assert not at.exception
+    assert at.session_state["plan"].rules.set == "ada-2010"
+    ada = load_ruleset("ada-2010")
+    turning = at.number_input(key="ov_ada-2010_turning.size")
+    assert turning.value == 1524  # 2010 ADA §304.3.1: 60 in
+    captions = " ".join(c.value for c in at.caption)
+    assert ada.get("turning.size").source in captions
+    at.number_input(key="ov_ada-2010_route.width").set_value(1000)
+    _click(at, "Apply values")
+    plan = at.session_state["plan"]
+    assert plan.rules.override_map() == {"route.width": 1000}
+    table = at.dataframe[-1].value
+    row = table[table["rule"] == "route.width"].iloc[0]
+    assert row["mm"] == "1000" and row["status"] == "overridden for this client"
+    _click(at, "Back to the set's own values")
+    assert at.session_state["plan"].rules.overrides == ()
+
+
+def test_saved_plan_reads_back_equal() -> None:
+    at = _app()
+    at.selectbox(key="edit_piece").set_value("bed")
+    at.run()
+    _click(at, "Lock where it stands")
+    plan = at.session_state["plan"]
+    assert loads_plan(dumps_plan(plan)) == plan
+    assert at.sidebar.get("download_button")
