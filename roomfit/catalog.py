@@ -24,11 +24,15 @@ from roomfit.rules import RuleSet
 
 __all__ = [
     "RELATIONS",
+    "SIDES",
     "TALL_HEIGHT",
     "FurnitureType",
     "ZoneReq",
     "PieceSpec",
     "load_catalog",
+    "zone_kinds",
+    "type_record",
+    "catalog_problems",
     "resolve_piece",
     "resolve_pieces",
 ]
@@ -42,6 +46,9 @@ TALL_HEIGHT = 1200
 #: ``in_front``: stands in front of the target's front (coffee table and sofa);
 #: ``facing``: faces the target across the room (sofa and TV unit).
 RELATIONS = ("beside_head", "in_front", "facing")
+
+#: Sides of a piece, in its own frame (its front faces local +y).
+SIDES = ("front", "back", "left", "right")
 
 
 @dataclass(frozen=True)
@@ -130,6 +137,63 @@ def load_catalog() -> dict[str, FurnitureType]:
             screen=int(raw.get("screen", 0)),
         )
     return out
+
+
+def type_record(t: FurnitureType, rules: RuleSet | None = None) -> dict[str, object]:
+    """A catalogue type as plain data (for ``--json`` and tables); with ``rules``, each
+    zone also carries its depth in mm under that rule set."""
+    zones: list[dict[str, object]] = []
+    for side, kind in t.zones:
+        z: dict[str, object] = {"side": side, "kind": kind}
+        if rules is not None:
+            z["depth"] = rules.mm(f"zone.{kind}")
+        zones.append(z)
+    return {
+        "id": t.id, "label": t.label, "category": t.category,
+        "width": t.width, "depth": t.depth, "height": t.height,
+        "against_wall": t.against_wall, "zones": zones,
+        "relations": [{"relation": r, "target": c} for r, c in t.relations],
+        "gap_min": t.gap_min, "gap_max": t.gap_max,
+        "view_min": t.view_min, "view_max": t.view_max, "screen": t.screen,
+        "source": t.source,
+    }
+
+
+def zone_kinds(catalog: dict[str, FurnitureType]) -> tuple[str, ...]:
+    """The zone kinds ``catalog`` uses, sorted; every rule set defines ``zone.<kind>``."""
+    return tuple(sorted({kind for t in catalog.values() for _, kind in t.zones}))
+
+
+def catalog_problems(catalog: dict[str, FurnitureType]) -> list[Problem]:
+    """Everything wrong with a catalogue, as problems (empty when it is sound).
+
+    Sizes must be positive (height may be 0 for a rug), zone sides one of :data:`SIDES`,
+    relations one of :data:`RELATIONS` pointing at a category some type has, gap and
+    viewing ranges ordered, and every type must name its source.
+    """
+    problems: list[Problem] = []
+    categories = {t.category for t in catalog.values()}
+    for t in catalog.values():
+        field = f"types.{t.id}"
+        if min(t.width, t.depth) <= 0 or t.height < 0:
+            problems.append(Problem(field, f"sizes must be positive, found {t.width} x "
+                                           f"{t.depth} x {t.height} mm"))
+        if not t.source.strip():
+            problems.append(Problem(f"{field}.source", "empty source",
+                                    "name the reference row, or say common practice"))
+        for side, _kind in t.zones:
+            if side not in SIDES:
+                problems.append(Problem(f"{field}.zones.{side}", f"unknown side {side!r}",
+                                        f"use one of {', '.join(SIDES)}"))
+        for rel, target in t.relations:
+            if rel not in RELATIONS:
+                problems.append(Problem(f"{field}.relations", f"unknown relation {rel!r}",
+                                        f"use one of {', '.join(RELATIONS)}"))
+            if target not in categories:
+                problems.append(Problem(f"{field}.relations", f"no type has category {target!r}"))
+        if t.gap_min > t.gap_max or t.view_min > t.view_max or t.gap_min < 0 or t.view_min < 0:
+            problems.append(Problem(field, "gap and viewing ranges must run from low to high"))
+    return problems
 
 
 def _long_side_zones(zones: list[tuple[str, str]], access: str | None) -> list[tuple[str, str]]:

@@ -8,12 +8,14 @@ furniture is proven not to fit; 2 bad input (file, field and what is wrong are p
 from __future__ import annotations
 
 import argparse
+import json
 import sys
 from collections.abc import Callable, Sequence
 
-from roomfit.errors import RoomfitError
+from roomfit.catalog import load_catalog, type_record
+from roomfit.errors import Problem, RoomfitError
 from roomfit.planfile import read_plan
-from roomfit.rules import rules_for
+from roomfit.rules import load_ruleset, rule_record, rules_for, ruleset_ids
 
 __all__ = ["CAUTION", "main", "build_parser"]
 
@@ -37,6 +39,85 @@ def _cmd_validate(args: argparse.Namespace) -> int:
     return EXIT_OK
 
 
+def _aligned(header: Sequence[str], rows: Sequence[Sequence[str]]) -> str:
+    """Rows as a plain text table, columns padded to their widest cell (last one unpadded)."""
+    cells = [list(header), *[list(r) for r in rows]]
+    widths = [max(len(r[i]) for r in cells) for i in range(len(header) - 1)]
+    lines = ["  ".join([*(c.ljust(w) for c, w in zip(r, widths, strict=False)), r[-1]]).rstrip()
+             for r in cells]
+    lines.insert(1, "  ".join([*("-" * w for w in widths), "-" * len(header[-1])]))
+    return "\n".join(lines)
+
+
+def _cmd_catalog(args: argparse.Namespace) -> int:
+    rules = load_ruleset(args.rules) if args.rules else None
+    types = [t for t in load_catalog().values()
+             if args.category is None or t.category == args.category]
+    if not types:
+        cats = sorted({t.category for t in load_catalog().values()})
+        raise RoomfitError(Problem("--category", f"no type has category {args.category!r}",
+                                   f"use one of {', '.join(cats)}"))
+    records = [type_record(t, rules) for t in types]
+    if args.json:
+        print(json.dumps({"rules": rules.id if rules else None, "types": records,
+                          "caution": CAUTION}, indent=2, ensure_ascii=False))
+        return EXIT_OK
+    rows = []
+    for r in records:
+        zones = ", ".join(f"{z['side']} {z['kind']}" + (f" {z['depth']}" if "depth" in z else "")
+                          for z in r["zones"])  # type: ignore[attr-defined]
+        rows.append([r["id"], r["label"], f"{r['width']} x {r['depth']}", str(r["height"]),
+                     "yes" if r["against_wall"] else "no", zones or "-", r["source"]])
+    print(_aligned(["id", "label", "size mm", "height", "wall", "zones"
+                    + (f" (depth mm, {rules.id})" if rules else ""), "source"], rows))
+    print(f"\n{len(rows)} types. Sizes are defaults: a plan may give a piece its own width, "
+          "depth and height.")
+    print(CAUTION)
+    return EXIT_OK
+
+
+def _format_value(rec: dict[str, object]) -> str:
+    if rec["unit"] == "text":
+        return str(rec["value"])
+    v = rec["value"]
+    return f"{v:g} {rec['unit']}" if isinstance(v, float) else f"{v} {rec['unit']}"
+
+
+def _cmd_rules(args: argparse.Namespace) -> int:
+    if args.plan:
+        rs = rules_for(read_plan(args.plan))
+    elif args.set:
+        rs = load_ruleset(args.set)
+    else:
+        sets = [load_ruleset(i) for i in ruleset_ids()]
+        if args.json:
+            print(json.dumps({"sets": [{"id": s.id, "label": s.label,
+                                        "description": s.description} for s in sets],
+                              "caution": CAUTION}, indent=2, ensure_ascii=False))
+            return EXIT_OK
+        print(_aligned(["id", "label", "description"],
+                       [[s.id, s.label, s.description] for s in sets]))
+        print("\nShow one set's values: roomfit rules SET")
+        print(CAUTION)
+        return EXIT_OK
+    records = [rule_record(r) for r in rs.rules]
+    if args.json:
+        print(json.dumps({"id": rs.id, "label": rs.label, "description": rs.description,
+                          "rules": records, "caution": CAUTION}, indent=2, ensure_ascii=False))
+        return EXIT_OK
+    print(f"{rs.id}: {rs.label}\n{rs.description}\n")
+    rows = [[str(r["id"]) + (" *" if r["overridden"] else ""), _format_value(r),
+             "-" if r["mm"] is None else str(r["mm"]), str(r["status"]), str(r["source"])]
+            for r in records]
+    print(_aligned(["rule", "value", "mm", "status", "source"], rows))
+    if rs.overridden:
+        print(f"\n* overridden by the plan ({len(rs.overridden)}); the source names the default.")
+    print("\nmemory: a default to confirm against the named text; common-practice: no standard "
+          "behind it. Rule meanings: docs/rules.md")
+    print(CAUTION)
+    return EXIT_OK
+
+
 def build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="roomfit",
@@ -48,6 +129,16 @@ def build_parser() -> argparse.ArgumentParser:
     p = sub.add_parser("validate", help="read a plan file and report every problem in it")
     p.add_argument("plan", help="plan file (.toml)")
     p.set_defaults(func=_cmd_validate)
+    p = sub.add_parser("catalog", help="list the furniture types with sizes, zones and sources")
+    p.add_argument("--rules", metavar="SET", help="also show each zone's depth under this rule set")
+    p.add_argument("--category", help="only types of this category (bed, sofa, ...)")
+    p.add_argument("--json", action="store_true", help="print JSON instead of a table")
+    p.set_defaults(func=_cmd_catalog)
+    p = sub.add_parser("rules", help="list the rule sets, or every value of one set with its source")
+    p.add_argument("set", nargs="?", help="rule set id (omit to list the sets)")
+    p.add_argument("--plan", help="show the set a plan file picks, with its overrides")
+    p.add_argument("--json", action="store_true", help="print JSON instead of a table")
+    p.set_defaults(func=_cmd_rules)
     return parser
 
 

@@ -46,6 +46,7 @@ __all__ = [
     "TURNING_SHAPES",
     "ruleset_ids",
     "ruleset_problems",
+    "rule_record",
     "load_ruleset",
     "rules_for",
 ]
@@ -135,6 +136,27 @@ class RuleSet:
     @property
     def overridden(self) -> tuple[Rule, ...]:
         return tuple(r for r in self.rules if r.overridden)
+
+
+def rule_record(rule: Rule) -> dict[str, object]:
+    """A rule as plain data (for ``--json`` and tables): the value in its own unit, whole
+    and exact millimetres (None for a word), status, source and whether it was overridden.
+
+    >>> rule_record(load_ruleset("ada-2010").get("turning.size"))["exact_mm"]
+    1524.0
+    """
+    length = rule.unit != "text" and not isinstance(rule.value, str)
+    return {
+        "id": rule.id,
+        "description": rule.description,
+        "value": rule.value,
+        "unit": rule.unit,
+        "mm": rule.mm if length else None,
+        "exact_mm": rule.exact_mm if length else None,
+        "source": rule.source,
+        "status": rule.status,
+        "overridden": rule.overridden,
+    }
 
 
 def ruleset_ids() -> list[str]:
