@@ -14,8 +14,9 @@ from collections.abc import Callable, Sequence
 
 from roomfit.catalog import load_catalog, type_record
 from roomfit.errors import Problem, RoomfitError
+from roomfit.plan import Plan
 from roomfit.planfile import read_plan
-from roomfit.rules import load_ruleset, rule_record, rules_for, ruleset_ids
+from roomfit.rules import RuleSet, load_ruleset, rule_record, rules_for, ruleset_ids
 
 __all__ = ["CAUTION", "main", "build_parser"]
 
@@ -118,6 +119,68 @@ def _cmd_rules(args: argparse.Namespace) -> int:
     return EXIT_OK
 
 
+def _plan_and_rules(args: argparse.Namespace) -> tuple[Plan, RuleSet]:
+    """The plan file and the rule set to use: the plan's own, or ``--rules`` with its overrides."""
+    plan = read_plan(args.plan)
+    name = getattr(args, "rules", None)
+    return plan, (load_ruleset(name, plan.rules.override_map()) if name else rules_for(plan))
+
+
+def _cmd_draw(args: argparse.Namespace) -> int:
+    from roomfit.draw import draw_svg
+    from roomfit.files import atomic_write, refuse_input_overwrite
+
+    refuse_input_overwrite(args.output, args.plan)
+    plan, rules = _plan_and_rules(args)
+    out = atomic_write(args.output, draw_svg(plan, rules, title=args.title))
+    placed = sum(p.placement is not None for p in plan.furniture)
+    print(f"{out}: drawing of {plan.name!r} to scale (1 unit = 1 mm), {len(plan.rooms)} rooms, "
+          f"{placed} of {len(plan.furniture)} pieces placed, rule set {rules.id}")
+    print(CAUTION)
+    return EXIT_OK
+
+
+def _cmd_export(args: argparse.Namespace) -> int:
+    from roomfit.export import to_geojson
+    from roomfit.files import atomic_write, refuse_input_overwrite
+
+    refuse_input_overwrite(args.output, args.plan)
+    plan, rules = _plan_and_rules(args)
+    collection = to_geojson(plan, rules)
+    out = atomic_write(args.output, json.dumps(collection, indent=1, ensure_ascii=False) + "\n")
+    print(f"{out}: GeoJSON of {plan.name!r}, {len(collection['features'])} features, "
+          "local coordinates in metres (x east, y north; not longitude/latitude)")
+    print(CAUTION)
+    return EXIT_OK
+
+
+def _cmd_check(args: argparse.Namespace) -> int:
+    from roomfit.check import audit, audit_record, marks_for, summary_text
+    from roomfit.files import atomic_write, refuse_input_overwrite
+
+    if args.draw:
+        refuse_input_overwrite(args.draw, args.plan)
+    plan = read_plan(args.plan)
+    rules = (load_ruleset(args.rules, plan.rules.override_map()) if args.rules
+             else rules_for(plan))
+    result = audit(plan, rules)
+    if args.draw:
+        from roomfit.draw import draw_svg
+
+        atomic_write(args.draw, draw_svg(plan, rules, marks=marks_for(result)))
+    if args.json:
+        record = {"plan": plan.name, "rules": rules.id, **audit_record(result),
+                  "caution": CAUTION}
+        print(json.dumps(record, indent=2, ensure_ascii=False))
+    else:
+        print(f"{args.plan}: audit of {plan.name!r}")
+        print(summary_text(result, rules))
+        if args.draw:
+            print(f"drawing with {len(result.failures)} failures marked: {args.draw}")
+        print(CAUTION)
+    return EXIT_OK if result.passed else EXIT_FAIL
+
+
 def build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="roomfit",
@@ -139,6 +202,24 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--plan", help="show the set a plan file picks, with its overrides")
     p.add_argument("--json", action="store_true", help="print JSON instead of a table")
     p.set_defaults(func=_cmd_rules)
+    p = sub.add_parser("draw", help="draw a plan to scale as SVG (furniture where the plan puts it)")
+    p.add_argument("plan", help="plan file (.toml)")
+    p.add_argument("-o", "--output", required=True, help="SVG file to write")
+    p.add_argument("--rules", metavar="SET", help="rule set for the use zones (default: the plan's)")
+    p.add_argument("--title", help="headline of the title block (default: the plan's name)")
+    p.set_defaults(func=_cmd_draw)
+    p = sub.add_parser("export", help="export a plan as GeoJSON in local coordinates (metres)")
+    p.add_argument("plan", help="plan file (.toml)")
+    p.add_argument("-o", "--output", required=True, help="GeoJSON file to write")
+    p.add_argument("--rules", metavar="SET", help="rule set for the use zones (default: the plan's)")
+    p.set_defaults(func=_cmd_export)
+    p = sub.add_parser("check", help="audit a furnished plan: clearances, circulation, turning "
+                                     "space (exit 1 when a rule fails)")
+    p.add_argument("plan", help="plan file (.toml) with furniture placed")
+    p.add_argument("--rules", metavar="SET", help="rule set to audit against (default: the plan's)")
+    p.add_argument("--json", action="store_true", help="print the findings as JSON")
+    p.add_argument("--draw", metavar="SVG", help="also write the plan with the failures marked")
+    p.set_defaults(func=_cmd_check)
     return parser
 
 
