@@ -68,6 +68,9 @@ __all__ = [
     "turning_space",
     "TurningResult",
     "marks_for",
+    "AREA_RULES",
+    "audit_record",
+    "summary_text",
 ]
 
 #: Every rule id an audit can report, in the order the summary lists them.
@@ -395,8 +398,8 @@ class TurningResult:
     """Outcome of the turning-space test in one free floor.
 
     ``fits``: a turning space of the asked shape fits; ``shape``: which one was found
-    (``circle``, ``square``, ``t`` or ``""``); ``measured``: the largest circle diameter (or
-    square side, for ``square``) found, mm; ``centre``: its centre; ``centres``: points where
+    (``circle``, ``square``, ``t`` or ``""``); ``measured``: the largest circle diameter, or
+    square side when ``measure`` is ``square``, found (mm); ``centre``: its centre; ``centres``: points where
     a person turning in the found space has its centre (for reachability), ``clearance``: how
     far those points are from any obstacle at least (mm).
     """
@@ -407,6 +410,7 @@ class TurningResult:
     centre: tuple[float, float] | None
     centres: tuple[tuple[float, float], ...]
     clearance: float
+    measure: str = "circle"
 
 
 def _raster(free: BaseGeometry, cell: float) -> tuple[np.ndarray, float, float]:
@@ -518,51 +522,71 @@ def turning_space(free: BaseGeometry, size: float, shape: str,
     if not polys:
         return TurningResult(False, "", 0.0, None, (), 0.0)
     floor = unary_union(polys)
-    mic = shapely.maximum_inscribed_circle(floor, 0.1)
+    mic = shapely.maximum_inscribed_circle(floor, TOUCH_MM)
     (cx, cy), (bx, by) = mic.coords[0], mic.coords[1]
-    diam = 2 * math.hypot(bx - cx, by - cy)
+    diam = round(2 * math.hypot(bx - cx, by - cy), 1)  # within 2 mm below the true one
     centre = (round(cx, 1), round(cy, 1))
-    if shape in ("circle", "circle-or-t") and diam + TOUCH_MM >= size:
+    if shape in ("circle", "circle-or-t"):
+        # exact test: the floor shrunk by the radius (less 1 mm) keeps some centres
         region = floor.buffer(-(size / 2 - TOUCH_MM), quad_segs=_QUAD_SEGS)
-        pts = [p for g in _polys(region) for p in g.exterior.coords[:-1]] or [centre]
-        return TurningResult(True, "circle", round(diam, 1), centre, _sample(pts + [centre]),
-                             size / 2 - TOUCH_MM)
-    if shape == "circle":
-        return TurningResult(False, "", round(diam, 1), centre, (), 0.0)
+        pts = [p for g in _polys(region) for p in g.exterior.coords[:-1]]
+        pts += [p for g in getattr(region, "geoms", [region]) if not g.is_empty
+                for p in [g.representative_point().coords[0]]]
+        if pts:
+            return TurningResult(True, "circle", max(diam, size), centre, _sample(pts),
+                                 size / 2 - TOUCH_MM)
+        diam = min(diam, size - TOUCH_MM)
+    if shape == "circle" or diam + 2 * TOUCH_MM < (size if shape == "square" else 0.6 * size):
+        # a square of side D holds a circle of diameter D, the T's bar one of 0.6 D
+        return TurningResult(False, "", diam, centre, (), 0.0)
+    if shape == "square" and diam >= size * math.sqrt(2):
+        region = floor.buffer(-size * math.sqrt(2) / 2, quad_segs=_QUAD_SEGS)
+        pts = [g.representative_point().coords[0] for g in getattr(region, "geoms", [region])
+               if not g.is_empty] or [centre]
+        return TurningResult(True, "square", round(diam / math.sqrt(2), 1), pts[0], tuple(pts),
+                             size / 2, "square")
+    # a cell that divides the size and its fifths exactly, so a room exactly as large as
+    # the space holds it: D / (5 m) with m the least whole number giving cells <= ``cell``
+    cell = size / (5 * math.ceil(size / (5 * cell)))
     grid, x0, y0 = _raster(floor, cell)
     sat = _sat(grid)
     if shape == "square":
         k = _cells(size, cell)
         ok = _fits(sat, k, k, [(0, 0, k, k)])
         lo, hi = 0, min(grid.shape)
-        while lo < hi:  # the largest k x k block that fits, for the report
+        while lo < hi:  # the largest block that fits, for the report
             mid = (lo + hi + 1) // 2
             if _fits(sat, mid, mid, [(0, 0, mid, mid)]).any():
                 lo = mid
             else:
                 hi = mid - 1
-        best = lo * cell
-        if ok.size and ok.any():
-            ii, jj = np.nonzero(ok)
-            pts = [(x0 + (j + k / 2) * cell, y0 + (i + k / 2) * cell) for i, j in zip(ii, jj, strict=True)]
-            return TurningResult(True, "square", best, (round(pts[0][0], 1), round(pts[0][1], 1)),
-                                 _sample(pts), k * cell / 2)
-        return TurningResult(False, "", best, centre, (), 0.0)
+        best = round(lo * cell, 1)
+        pts = _centres(ok, x0, y0, cell, k / 2, k / 2)
+        if pts:
+            return TurningResult(True, "square", best, pts[0], pts, k * cell / 2, "square")
+        return TurningResult(False, "", best, centre, (), 0.0, "square")
     w, h, rects = _t_rects(size, cell)
-    pts: list[tuple[float, float]] = []
+    pts: tuple[tuple[float, float], ...] = ()
     for turn in range(4):
-        ok = _fits(sat, w, h, rects)
-        if ok.size and ok.any():
-            # the body turns at the middle of the bar: the bar's centre
-            bx0, by0, bw, bh = rects[0]
-            for i, j in zip(*np.nonzero(ok), strict=True):
-                pts.append((x0 + (j + bx0 + bw / 2) * cell, y0 + (i + by0 + bh / 2) * cell))
+        # the body turns at the middle of the bar: the bar's centre
+        bx0, by0, bw, bh = rects[0]
+        pts += _centres(_fits(sat, w, h, rects), x0, y0, cell, bx0 + bw / 2, by0 + bh / 2)
         if turn < 3:
             w, h, rects = _rot_rects(w, h, rects)
     if pts:
-        c = (round(pts[0][0], 1), round(pts[0][1], 1))
-        return TurningResult(True, "t", round(diam, 1), c, _sample(pts), 0.3 * size)
+        return TurningResult(True, "t", round(diam, 1), pts[0], _sample(list(pts)), 0.3 * size)
     return TurningResult(False, "", round(diam, 1), centre, (), 0.0)
+
+
+def _centres(ok: np.ndarray, x0: float, y0: float, cell: float, dx: float, dy: float,
+             limit: int = 200) -> tuple[tuple[float, float], ...]:
+    """Up to ``limit`` points (dx, dy) cells from the positions where ``ok`` holds."""
+    if not ok.size or not ok.any():
+        return ()
+    ii, jj = np.nonzero(ok)
+    pick = np.linspace(0, len(ii) - 1, min(limit, len(ii))).astype(int)
+    return tuple((round(float(x0 + (jj[n] + dx) * cell), 1),
+                  round(float(y0 + (ii[n] + dy) * cell), 1)) for n in pick)
 
 
 def _check_turning(ctx: _Ctx) -> tuple[list[Finding], list[_Target]]:
@@ -578,15 +602,14 @@ def _check_turning(ctx: _Ctx) -> tuple[list[Finding], list[_Target]]:
         what = {"circle": "circle", "square": "square", "t": "T-shaped space"}.get(res.shape, "")
         if res.fits:
             msg = (f"a {_fmt(size)} turning {what} fits in {room.id}"
-                   + (f" (largest circle {_fmt(res.measured)})" if res.shape != "square" else ""))
+                   f" (largest {res.measure} {_fmt(res.measured)})")
             targets.append(_Target(f"the turning space in {room.id}", room.id,
                                    MultiPoint(list(res.centres)), res.clearance, ()))
         else:
             kind = {"circle": "circle", "square": "square",
                     "circle-or-t": "circle nor T-shaped space"}[shape]
-            largest = "square" if shape == "square" else "circle"
             msg = (f"no {_fmt(size)} turning {kind} fits in {room.id}; "
-                   f"the largest {largest} is {_fmt(res.measured)}")
+                   f"the largest {res.measure} is {_fmt(res.measured)}")
         outline: tuple[tuple[float, float], ...] = ()
         if res.centre is not None and res.shape in ("circle", ""):
             r = (size if res.fits else res.measured) / 2
@@ -947,6 +970,71 @@ def audit(plan: Plan, rules: RuleSet) -> Audit:
     order = {r: i for i, r in enumerate(RULE_IDS)}
     findings.sort(key=lambda f: order.get(f.rule, len(order)))
     return Audit(tuple(findings))
+
+
+#: Rules whose ``measured`` and ``required`` are areas (mm2) rather than lengths.
+AREA_RULES = ("piece.inside", "piece.overlap", "zone.clear", "door.swing_clear",
+              "window.clear")
+
+
+def audit_record(result: Audit) -> dict[str, object]:
+    """The audit as plain data for ``--json``: ``passed``, counts and every finding."""
+    return {
+        "passed": result.passed,
+        "checked": len(result.findings),
+        "failed": len(result.failures),
+        "findings": [
+            {"rule": f.rule, "ok": f.ok, "message": f.message, "measured": f.measured,
+             "required": f.required, "unit": "mm2" if f.rule in AREA_RULES else "mm",
+             "source": f.source, "pieces": list(f.pieces), "room": f.room,
+             "where": list(f.where) if f.where else None,
+             "outline": [list(p) for p in f.outline]}
+            for f in result.findings
+        ],
+    }
+
+
+def _amount(f: Finding, value: float, inches: bool) -> str:
+    if f.rule in AREA_RULES:
+        return f"{value / 1e4:.0f} cm2" if value >= 1e4 else f"{value:.0f} mm2"
+    text = f"{value:.0f} mm"
+    return text + f" ({value / 25.4:.1f} in)" if inches else text
+
+
+def summary_text(result: Audit, rules: RuleSet) -> str:
+    """A readable summary: per rule pass or fail, then each failure with measured against
+    required (in inches too for sets stated in inches), where, which pieces and the source."""
+    inches = rules.get("route.width").unit == "in"
+    lines = [f"rule set: {rules.id} ({rules.label})"
+             + (f", {len(rules.overridden)} values overridden by the plan" if rules.overridden
+                else "")]
+    for rule in RULE_IDS + tuple(sorted({f.rule for f in result.findings} - set(RULE_IDS))):
+        mine = result.by_rule(rule)
+        if not mine:
+            continue
+        bad = [f for f in mine if not f.ok]
+        head = "FAIL" if bad else "pass"
+        lines.append(f"{head}  {rule:<17} {len(mine) - len(bad)} of {len(mine)} pass")
+        for f in bad:
+            lines.append(f"      - {f.message}")
+            facts = []
+            if f.measured is not None and f.required is not None:
+                facts.append(f"measured {_amount(f, f.measured, inches)}, required "
+                             + ("none" if f.rule in AREA_RULES and f.required == 0 else
+                                _amount(f, f.required, inches)))
+            if f.where is not None:
+                facts.append(f"at ({f.where[0]:.0f}, {f.where[1]:.0f})")
+            if f.room:
+                facts.append(f"room {f.room}")
+            if f.pieces:
+                facts.append("involves " + ", ".join(f.pieces))
+            if facts:
+                lines.append("        " + "; ".join(facts))
+            if f.source:
+                lines.append(f"        source: {f.source}")
+    n, k = len(result.findings), len(result.failures)
+    lines.append(f"result: all {n} checks pass" if not k else f"result: {k} of {n} checks fail")
+    return "\n".join(lines)
 
 
 def marks_for(result: Audit) -> list:
