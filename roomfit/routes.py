@@ -17,9 +17,10 @@ ch. 15). ``docs/routes.md`` says why we chose this over a grid.
 
 The width of a route at a point is the shortest chord through that point between two
 blockers (walls, fittings, furniture), searched in 5 degree steps: in a gap between two
-parallel faces it is the gap, whichever way the route crosses it. The narrowest width of a
-route is the least such width along it, sampled every 50 mm or less, and never more than
-the width of a doorway it passes.
+parallel faces it is the gap, whichever way the route crosses it. Chords that only cut
+across a corner (their ends lie close together along the boundary) are not passages and are
+skipped. The narrowest width of a route is the least such width along it, sampled every
+50 mm or less, and never more than the width of a doorway it passes.
 
 Places a trip can start or end at: ``"entrance"`` (the centre of the entrance door), a door
 id (the centre of the doorway), a room id (the centre of the largest circle in the room's
@@ -82,6 +83,8 @@ _SPINE = 1.0        # mm: half-width of the spine through a doorway narrower tha
 _CHORD_STEP = 5     # degrees between chord directions when measuring width
 _MERGE = 5.0        # mm: path points closer than this are merged before counting turns
 _MIN_WAY = 20       # mm: narrowest way and precision searched when explaining a gap
+_POCKET = 2.0       # a chord cutting off less boundary than this many times its length is a corner
+_RING_TOL = 2.0     # mm: a chord end this close to a boundary ring lies on it
 _DOORWAY = 50       # mm: furniture this close to a doorway's wall line blocks the doorway
 
 XY = tuple[float, float]
@@ -195,6 +198,7 @@ class _Base:
     blockers: list[tuple[str, BaseGeometry]]  # walls, fittings, furniture with ids
     blocker_union: BaseGeometry
     edges: np.ndarray                        # straight edges of the blockers (x0, y0, x1, y1)
+    rings: list[LineString]                  # boundary rings of the free floor, walls carved
 
 
 @dataclass
@@ -259,9 +263,12 @@ def _build_base(plan: Plan, rules: RuleSet) -> _Base:
     blockers = [("wall", walls), *obstacles]
     floor_tol = free.buffer(_TOL, join_style="mitre")
     shapely.prepare(floor_tol)
+    carved = free.difference(walls.buffer(_TOL, join_style="mitre"))
+    rings = [LineString(ring.coords) for poly in shapely.get_parts(carved)
+             if isinstance(poly, Polygon) for ring in [poly.exterior, *poly.interiors]]
     return _Base(rules, specs, rooms, room_free, taken, floor, floor_tol, doors, openings,
                  doorways, blockers, unary_union([g for _, g in blockers]),
-                 _segments([g for _, g in blockers]))
+                 _segments([g for _, g in blockers]), rings)
 
 
 def _build_space(base: _Base, width: float) -> _Space:
@@ -490,9 +497,12 @@ def _segments(geoms: Sequence[BaseGeometry]) -> np.ndarray:
     return np.vstack(rows) if rows else np.zeros((0, 4))
 
 
-def _chord_width(segs: np.ndarray, p: np.ndarray, cap: float) -> float:
-    """Shortest chord through ``p`` between blockers (5 degree steps); each half at most
-    ``cap``. Rays are cast against the blockers' edges (``segs``) in closed form."""
+def _chords(segs: np.ndarray, p: np.ndarray, cap: float) -> tuple[np.ndarray, np.ndarray]:
+    """Chords through ``p`` between blockers in 5 degree steps: lengths and end points.
+
+    Rays are cast against the blockers' straight edges (``segs``) in closed form; a ray that
+    meets nothing within ``cap`` stops there.
+    """
     ang = np.radians(np.arange(0, 360, _CHORD_STEP))
     d = np.stack([np.cos(ang), np.sin(ang)], axis=1)              # rays x 2
     a, e = segs[:, :2], segs[:, 2:] - segs[:, :2]                 # edges x 2
@@ -503,19 +513,50 @@ def _chord_width(segs: np.ndarray, p: np.ndarray, cap: float) -> float:
         s = (ap[None, :, 0] * d[:, None, 1] - ap[None, :, 1] * d[:, None, 0]) / den
     hit = (np.abs(den) > 1e-12) & (t >= 0) & (s >= -1e-9) & (s <= 1 + 1e-9)
     dist = np.minimum(np.where(hit, t, np.inf).min(axis=1, initial=np.inf), cap)
+    ends = p + d * dist[:, None]
     half = len(ang) // 2
-    return float(np.min(dist[:half] + dist[half:]))
+    return dist[:half] + dist[half:], np.stack([ends[:half], ends[half:]], axis=1)
+
+
+def _ring_at(base: _Base, q: np.ndarray) -> tuple[int, float] | None:
+    """The free-floor boundary ring through ``q`` and the distance along it, if any."""
+    pt = Point(q)
+    for i, ring in enumerate(base.rings):
+        if ring.distance(pt) <= _RING_TOL:
+            return i, ring.project(pt)
+    return None
+
+
+def _passage_width(base: _Base, p: np.ndarray, cap: float) -> float:
+    """Width of the passage at ``p``: the shortest chord through it that is a constriction.
+
+    A chord whose ends lie on the same boundary ring, less than :data:`_POCKET` times its own
+    length apart along that ring, only cuts across a corner (a room corner gives at most
+    sqrt 2) and is skipped; a chord between two pieces, or across a corridor, has ends far
+    apart along the boundary or on different rings.
+    """
+    lengths, ends = _chords(base.edges, p, cap)
+    for k in np.argsort(lengths):
+        a, b = _ring_at(base, ends[k][0]), _ring_at(base, ends[k][1])
+        if a is None or b is None or a[0] != b[0]:
+            return float(lengths[k])
+        along = abs(a[1] - b[1])
+        along = min(along, base.rings[a[0]].length - along)
+        if along >= _POCKET * lengths[k]:
+            return float(lengths[k])
+    return float(2 * cap)
 
 
 def _narrowest(space: _Space, points: Sequence[XY]) -> tuple[float, XY]:
-    """Least chord width along the route (branch and bound on 2 x distance to blockers)."""
+    """Least passage width along the route (branch and bound: the width at a point is at
+    least twice its distance to the nearest blocker)."""
     pts = _samples(points, SAMPLE_STEP_MM)
     lower = 2 * shapely.distance(shapely.points(pts), space.base.blocker_union)
     best, where = float(WIDTH_CAP_MM), tuple(pts[0])
     for k in np.argsort(lower):
         if lower[k] >= best:
             break
-        w = _chord_width(space.base.edges, pts[k], WIDTH_CAP_MM / 2)
+        w = _passage_width(space.base, pts[k], WIDTH_CAP_MM / 2)
         if w < best:
             best, where = w, (float(pts[k][0]), float(pts[k][1]))
     return best, where
