@@ -5,11 +5,16 @@ No timings are asserted here; speed is what the benchmark itself reports.
 
 from __future__ import annotations
 
+import json
+import xml.etree.ElementTree as ET
+from pathlib import Path
+
 import pytest
 from shapely.geometry import Polygon
 
 from roomfit.bench.baseline import AnnealOptions, anneal, layout_cost
 from roomfit.bench.instances import SHAPES, InstanceSpec, floor_demand, generate, wheelchair_set
+from roomfit.bench.run import BenchConfig, run
 from roomfit.check import audit
 from roomfit.plan import Layout, Piece, Placement, Plan, Room, RuleChoice
 from roomfit.planfile import dumps_plan, loads_plan
@@ -110,3 +115,28 @@ def test_baseline_is_judged_by_the_checker() -> None:
     result = audit(plan.with_layout(res.layout), rules)
     assert result.passed, [f.message for f in result.failures]
     assert {pid for pid, _ in res.layout} == {p.id for p in plan.furniture}
+
+
+def test_harness_writes_well_formed_results(tmp_path: Path) -> None:
+    config = BenchConfig(quick=True, seed=0, time_budget=0.5, samples=False,
+                         instances=(InstanceSpec(rooms=1, pieces=4, seed=0),))
+    out = tmp_path / "results.json"
+    said: list[str] = []
+    run(config, out, said.append)
+
+    def strict(name: str) -> None:
+        raise ValueError(f"not JSON: {name}")
+
+    data = json.loads(out.read_text(), parse_constant=strict)
+    assert data["machine"]["cpu_count"] and data["machine"]["python"]
+    assert data["machine"]["ortools"] and data["machine"]["shapely"]
+    (row,) = data["instances"]
+    assert (row["rooms"], row["pieces"]) == (1, 4)
+    assert "status" in row["solver"] or "error" in row["solver"]
+    assert isinstance(row["baseline"]["success"], bool)
+    assert row["baseline"]["arrangement"]["passed"] is row["baseline"]["success"]
+    assert set(data["summary"]["targets"]) >= {"first_valid_1room_10", "impossible_explained"}
+    assert [p["pieces"] for p in data["scaling"]] == [4]
+    svg = ET.fromstring(out.with_suffix(".svg").read_text())  # well-formed XML
+    assert svg.tag.endswith("svg")
+    assert said and all(m.startswith("[1/1]") for m in said)
