@@ -106,7 +106,8 @@ _MEMORY = _memory_method()
 
 
 def machine() -> dict[str, Any]:
-    """Platform, CPU count, Python and library versions, and the memory method."""
+    """Platform, CPU count, Python and library versions, the memory method, and the load
+    average (1, 5, 15 min) when asked: other work on the machine slows every timing."""
     cpu = platform.processor() or ""
     try:
         with open("/proc/cpuinfo") as fh:
@@ -126,6 +127,7 @@ def machine() -> dict[str, Any]:
         "scipy": _version("scipy"),
         "networkx": _version("networkx"),
         "memory_method": _MEMORY,
+        "load_average": [round(x, 2) for x in os.getloadavg()],
     }
 
 
@@ -560,6 +562,7 @@ def run(config: BenchConfig, out: Path, say: Callable[[str], None]) -> dict[str,
         "instances": rows,
         "scaling": scaling_rows(rows),
         "summary": summarize(rows),
+        "load_average_end": [round(x, 2) for x in os.getloadavg()],
     }
     atomic_write(out, json.dumps(results, indent=1, allow_nan=False) + "\n")
     if results["scaling"]:
