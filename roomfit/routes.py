@@ -73,7 +73,7 @@ NIGHT_LONG_MM = 10_000
 SAMPLE_STEP_MM = 50
 
 #: Widths are measured up to this much (mm); wider is reported as this value.
-WIDTH_CAP_MM = 6_000
+WIDTH_CAP_MM = 3_000
 
 #: A change of direction by more than this many degrees counts as a turn.
 TURN_DEGREES = 30
@@ -505,6 +505,8 @@ def _chords(segs: np.ndarray, p: np.ndarray, cap: float) -> tuple[np.ndarray, np
     """
     ang = np.radians(np.arange(0, 360, _CHORD_STEP))
     d = np.stack([np.cos(ang), np.sin(ang)], axis=1)              # rays x 2
+    lo, hi = np.minimum(segs[:, :2], segs[:, 2:]), np.maximum(segs[:, :2], segs[:, 2:])
+    segs = segs[np.all((lo <= p + cap) & (hi >= p - cap), axis=1)]  # edges a ray can reach
     a, e = segs[:, :2], segs[:, 2:] - segs[:, :2]                 # edges x 2
     ap = a - p
     den = d[:, None, 0] * e[None, :, 1] - d[:, None, 1] * e[None, :, 0]
@@ -547,12 +549,16 @@ def _passage_width(base: _Base, p: np.ndarray, cap: float) -> float:
     return float(2 * cap)
 
 
-def _narrowest(space: _Space, points: Sequence[XY]) -> tuple[float, XY]:
-    """Least passage width along the route (branch and bound: the width at a point is at
-    least twice its distance to the nearest blocker)."""
+def _narrowest(space: _Space, points: Sequence[XY],
+               known: tuple[float, XY] | None = None) -> tuple[float, XY]:
+    """Least passage width along the route, or ``known`` (a doorway's width) if narrower.
+
+    Branch and bound: the width at a point is at least twice its distance to the nearest
+    blocker, so points whose bound reaches the best width so far are not measured.
+    """
     pts = _samples(points, SAMPLE_STEP_MM)
     lower = 2 * shapely.distance(shapely.points(pts), space.base.blocker_union)
-    best, where = float(WIDTH_CAP_MM), tuple(pts[0])
+    best, where = known if known is not None else (float(WIDTH_CAP_MM), tuple(pts[0]))
     for k in np.argsort(lower):
         if lower[k] >= best:
             break
@@ -635,11 +641,9 @@ def _trip(plan: Plan, space: _Space, trip: Trip, origin: str | XY,
     except _Unreachable as e:
         flags = (f"night route {name}: unreachable ({e})",) if trip.night else ()
         return TripScore(**base, reachable=False, reason=str(e), flags=flags)
-    width, where = _narrowest(space, core)
     doors = _doors_passed(space, points)
-    for _, dw, centre in doors:
-        if dw < width:
-            width, where = float(dw), centre
+    door = min(((float(dw), c) for _, dw, c in doors), default=None)
+    width, where = _narrowest(space, core, door)
     length = _length(points)
     flags: list[str] = []
     if trip.night and length > NIGHT_LONG_MM:

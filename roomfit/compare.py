@@ -1,0 +1,264 @@
+"""Arrangements side by side: one row of metrics per arrangement, the best value marked.
+
+Metrics (see ``docs/routes.md``):
+
+- rules failed: failing findings of :func:`roomfit.check.audit` (fewer is better);
+- walking per day: :attr:`RouteScores.walking_m_per_day`; an arrangement that leaves a
+  routine trip unreachable ranks behind every one that does not, whatever its metres;
+- narrowest passage on any routine route (mm, wider is better);
+- turning spaces: rooms that have one out of the rooms the rule set asks one for;
+- free floor: the share of the rooms' floor not under fittings or furniture;
+- preferences met: pieces of wall-loving categories standing with their back to a wall, and
+  beds whose head is not under a window (common practice; the solver's weights in
+  ``data/preferences.toml`` name the same wishes).
+
+A metric is marked best on the rows that reach its best value, unless every row ties (then
+the mark would say nothing) or there is only one row.
+"""
+
+from __future__ import annotations
+
+import tomllib
+from collections.abc import Sequence
+from dataclasses import dataclass
+from importlib import resources
+
+from shapely import LineString, Polygon
+from shapely.ops import unary_union
+
+from roomfit.catalog import resolve_pieces
+from roomfit.check import Audit, audit
+from roomfit.geometry import fixture_polygon, footprint, side_direction, window_segment
+from roomfit.plan import Plan
+from roomfit.routes import RouteScores, score_routes
+from roomfit.rules import RuleSet, rules_for
+
+__all__ = [
+    "METRICS",
+    "WALL_CATEGORIES",
+    "Metric",
+    "Row",
+    "Comparison",
+    "compare",
+    "compare_row",
+    "render_table",
+]
+
+#: Categories that usually stand with their back to a wall (common practice), used when the
+#: solver's preference file is not there.
+WALL_CATEGORIES = ("sofa", "bookcase", "chest", "tv", "shoe_cabinet", "desk", "armchair",
+                   "wardrobe", "bed")
+
+#: A back edge this close (mm) to a wall counts as against it.
+_WALL_GAP = 10
+
+
+@dataclass(frozen=True)
+class Metric:
+    """A column of the comparison: ``better`` is ``"lower"`` or ``"higher"``."""
+
+    id: str
+    label: str
+    better: str
+
+
+METRICS = (
+    Metric("rules_failed", "Rules failed", "lower"),
+    Metric("walking", "Walking per day", "lower"),
+    Metric("narrowest", "Narrowest on a routine route", "higher"),
+    Metric("turning", "Turning spaces (have / need)", "higher"),
+    Metric("free_floor", "Free floor", "higher"),
+    Metric("preferences", "Preferences met", "higher"),
+)
+
+
+@dataclass(frozen=True)
+class Row:
+    """One arrangement's metrics, with the audit and route scores they came from."""
+
+    name: str
+    plan: Plan
+    rules: RuleSet
+    audit: Audit
+    routes: RouteScores
+    rules_failed: int
+    walking_m_per_day: float
+    unreachable: int
+    narrowest_mm: float | None
+    turning_have: int
+    turning_need: int
+    free_floor_share: float
+    preferences_met: int
+    preferences_total: int
+
+    def value(self, metric: str) -> tuple[float, ...] | None:
+        """The metric as a sortable key (None when it does not apply)."""
+        if metric == "rules_failed":
+            return (self.rules_failed,)
+        if metric == "walking":
+            return (self.unreachable, round(self.walking_m_per_day, 3))
+        if metric == "narrowest":
+            return None if self.narrowest_mm is None else (round(self.narrowest_mm),)
+        if metric == "turning":
+            return None if not self.turning_need else (self.turning_have / self.turning_need,)
+        if metric == "free_floor":
+            return (round(self.free_floor_share, 4),)
+        if metric == "preferences":
+            return None if not self.preferences_total else (
+                self.preferences_met / self.preferences_total,)
+        raise KeyError(metric)
+
+    def text(self, metric: str) -> str:
+        """The metric as a short cell text."""
+        if metric == "rules_failed":
+            return f"{self.rules_failed} of {len(self.audit.findings)}"
+        if metric == "walking":
+            out = f"{self.walking_m_per_day:.1f} m"
+            if self.unreachable:
+                out += f" ({self.unreachable} trip{'s' if self.unreachable > 1 else ''} unreachable)"
+            return out
+        if metric == "narrowest":
+            return "-" if self.narrowest_mm is None else f"{self.narrowest_mm:.0f} mm"
+        if metric == "turning":
+            return "not asked" if not self.turning_need else f"{self.turning_have} / {self.turning_need}"
+        if metric == "free_floor":
+            return f"{100 * self.free_floor_share:.0f} %"
+        if metric == "preferences":
+            return "-" if not self.preferences_total else (
+                f"{self.preferences_met} / {self.preferences_total}")
+        raise KeyError(metric)
+
+
+@dataclass(frozen=True)
+class Comparison:
+    """Rows in the order given; ``best`` maps a metric id to the indexes of its best rows."""
+
+    rows: tuple[Row, ...]
+    best: tuple[tuple[str, tuple[int, ...]], ...]
+
+    def is_best(self, metric: str, index: int) -> bool:
+        return index in dict(self.best).get(metric, ())
+
+
+def _wall_categories() -> tuple[str, ...]:
+    """Wall-loving categories from the solver's preference file, else :data:`WALL_CATEGORIES`."""
+    path = resources.files("roomfit") / "data" / "preferences.toml"
+    try:
+        cats = tomllib.loads(path.read_text(encoding="utf-8"))["wall"]["categories"]
+    except (OSError, KeyError, tomllib.TOMLDecodeError):
+        return WALL_CATEGORIES
+    return tuple(cats) + tuple(c for c in ("wardrobe", "bed") if c not in cats)
+
+
+def _back_edge(box: tuple[float, float, float, float], rotation: int) -> LineString:
+    x0, y0, x1, y1 = box
+    dx, dy = side_direction("back", rotation)
+    if dy == -1:
+        return LineString([(x0, y0), (x1, y0)])
+    if dy == 1:
+        return LineString([(x0, y1), (x1, y1)])
+    if dx == -1:
+        return LineString([(x0, y0), (x0, y1)])
+    return LineString([(x1, y0), (x1, y1)])
+
+
+def _preferences(plan: Plan, rules: RuleSet) -> tuple[int, int]:
+    """(met, asked): wall-loving pieces with their back to a wall; beds not under a window."""
+    specs = {s.id: s for s in resolve_pieces(plan, rules)}
+    cats = _wall_categories()
+    walls = unary_union([Polygon(r.outline).exterior for r in plan.rooms])
+    windows = [window_segment(plan, w) for w in plan.windows]
+    met = asked = 0
+    for pid, pl in plan.layout:
+        spec = specs[pid]
+        back = _back_edge(footprint(spec, pl).bounds, pl.rotation)
+        if spec.category in cats or spec.against_wall:
+            asked += 1
+            near = back.intersection(walls.buffer(_WALL_GAP, cap_style="flat")).length
+            met += near >= 0.8 * back.length
+        if spec.category == "bed":
+            asked += 1
+            met += not any(back.distance(w) <= _WALL_GAP for w in windows)
+    return met, asked
+
+
+def _free_share(plan: Plan, rules: RuleSet) -> float:
+    floor = unary_union([Polygon(r.outline) for r in plan.rooms])
+    specs = {s.id: s for s in resolve_pieces(plan, rules)}
+    taken = [fixture_polygon(f) for f in plan.fixtures]
+    taken += [footprint(specs[pid], pl) for pid, pl in plan.layout]
+    used = floor.intersection(unary_union(taken)).area if taken else 0.0
+    return (floor.area - used) / floor.area if floor.area else 0.0
+
+
+def compare_row(plan: Plan, name: str, rules: RuleSet | None = None) -> Row:
+    """Audit, route and measure one arrangement (``rules``: the plan's own set if None)."""
+    rs = rules if rules is not None else rules_for(plan)
+    result = audit(plan, rs)
+    routes = score_routes(plan, rs)
+    turning = result.by_rule("turning.space")
+    met, asked = _preferences(plan, rs)
+    return Row(
+        name=name, plan=plan, rules=rs, audit=result, routes=routes,
+        rules_failed=len(result.failures),
+        walking_m_per_day=routes.walking_m_per_day,
+        unreachable=len(routes.unreachable),
+        narrowest_mm=routes.narrowest_mm,
+        turning_have=sum(f.ok for f in turning), turning_need=len(turning),
+        free_floor_share=_free_share(plan, rs),
+        preferences_met=met, preferences_total=asked,
+    )
+
+
+def _best(rows: Sequence[Row]) -> tuple[tuple[str, tuple[int, ...]], ...]:
+    out = []
+    for m in METRICS:
+        vals = [(i, r.value(m.id)) for i, r in enumerate(rows)]
+        vals = [(i, v) for i, v in vals if v is not None]
+        if len(vals) < 2:
+            continue
+        pick = min if m.better == "lower" else max
+        top = pick(v for _, v in vals)
+        winners = tuple(i for i, v in vals if v == top)
+        if len(winners) < len(vals):
+            out.append((m.id, winners))
+    return tuple(out)
+
+
+def compare(plans: Sequence[Plan], names: Sequence[str] | None = None,
+            rules: RuleSet | None = None) -> Comparison:
+    """One row per arrangement (each plan's as-is layout), best values marked.
+
+    ``names`` label the rows (default: the plans' names); ``rules`` applies one rule set to
+    all (default: each plan's own, with its overrides).
+    """
+    labels = list(names) if names is not None else [p.name for p in plans]
+    if len(labels) != len(plans):
+        raise ValueError("compare needs one name per plan")
+    rows = tuple(compare_row(p, n, rules) for p, n in zip(plans, labels, strict=True))
+    return Comparison(rows, _best(rows))
+
+
+def render_table(comparison: Comparison, mark: str = "*") -> str:
+    """A plain-text table: metrics down, arrangements across, best values marked ``mark``."""
+    rows = comparison.rows
+    head = ["", *(r.name for r in rows)]
+    body = [["Rule set", *(r.rules.id for r in rows)]]
+    for m in METRICS:
+        body.append([m.label, *(r.text(m.id) + (f" {mark}" if comparison.is_best(m.id, i) else "")
+                                for i, r in enumerate(rows))])
+    table = [head, *body]
+    widths = [max(len(line[c]) for line in table) for c in range(len(head))]
+    lines = ["  ".join(cell.ljust(w) for cell, w in zip(line, widths, strict=True)).rstrip()
+             for line in table]
+    lines.insert(1, "  ".join("-" * w for w in widths))
+    notes = [f"{mark} best value" if comparison.best else "no metric tells the arrangements apart"]
+    for r in rows:
+        for t in r.routes.unreachable:
+            notes.append(f"{r.name}: {t.name} unreachable: {t.reason}")
+        for f in r.routes.flags:
+            if "unreachable" not in f:
+                notes.append(f"{r.name}: {f}")
+        if r.routes.defaults:
+            notes.append(f"{r.name}: no routine in the plan; default trips assumed")
+    return "\n".join(lines + [""] + notes)
