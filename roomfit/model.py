@@ -1,0 +1,754 @@
+"""The CP-SAT placement model: rooms as rectangles and obstacles, pieces as optional intervals.
+
+This module builds the model for one group of rooms and decodes solutions; ``solver.py`` runs
+it, verifies every layout with the checker and collects candidates. All lengths are integer
+millimetres in plan coordinates (y up).
+
+How the plan becomes a model (see ``docs/solver.md``):
+
+- A room is its bounding box plus fixed obstacles covering the parts of the box outside the
+  room. The cover is exact for axis-aligned walls; for an angled wall every grid cell the
+  wall cuts is blocked, so the model is conservative there.
+- Each piece has one position ``(x, y)`` (the lower-left corner of its turned footprint) and
+  one presence literal per allowed (room, rotation); exactly one is on. Positions lie on the
+  grid (``grid`` mm, absolute multiples) or flush against an axis-aligned wall.
+- Per room, one ``NoOverlap2D`` holds every footprint, the obstacles (outside floor,
+  fittings, door approach floor, fitting use zones) and the turning space. Per piece and room,
+  a second ``NoOverlap2D`` holds the piece's use zones with every other footprint and the hard
+  obstacles (outside floor and fittings): zones may overlap zones, door approach floor and the
+  turning space, but no furniture. Tall pieces share one more ``NoOverlap2D`` with the window
+  bands.
+- A wheelchair turning circle of diameter D fits inside two crossing D x 0.71 D rectangles
+  (a point of the circle outside both would need cos and sin above 0.71 at once); we keep that
+  cross (as three disjoint rectangles) free of furniture. A square turning space is a D x D box.
+- The optional *strengthening* (pairwise gap rules and door walkways) is not needed for a
+  layout to be valid; it steers the search away from pinch points the checker would reject.
+  An "impossible" answer is only ever taken from the model without it.
+
+References: Google OR-Tools CP-SAT, ``AddNoOverlap2D`` with optional intervals and
+``SufficientAssumptionsForInfeasibility``.
+"""
+
+from __future__ import annotations
+
+import math
+import tomllib
+from dataclasses import dataclass, field
+from importlib import resources
+
+import numpy as np
+import shapely
+from ortools.sat.python import cp_model
+from shapely import box
+from shapely.geometry import Polygon
+from shapely.geometry.base import BaseGeometry
+
+from roomfit.catalog import PieceSpec
+from roomfit.geometry import (
+    door_shapes,
+    fixture_polygon,
+    fixture_zone,
+    room_polygon,
+    side_direction,
+    window_band,
+)
+from roomfit.plan import Placement, Plan, Room
+from roomfit.rules import RuleSet
+
+__all__ = [
+    "Rect",
+    "Wall",
+    "RoomGeo",
+    "PieceVars",
+    "Built",
+    "load_preferences",
+    "cover_rects",
+    "room_geometry",
+    "build_model",
+    "decode",
+    "differs",
+    "cross_thickness",
+    "ROUTE_MARGIN",
+    "GRID_DOMAINS",
+]
+
+Rect = tuple[int, int, int, int]
+"""``(x0, y0, x1, y1)`` in mm, x0 < x1 and y0 < y1."""
+
+
+@dataclass(frozen=True)
+class Wall:
+    """An axis-aligned wall segment of a room: ``axis`` is ``"x"`` for a wall at x = ``at``
+    (running along y from ``lo`` to ``hi``) or ``"y"`` for a wall at y = ``at``; ``outward``
+    is the unit normal pointing out of the room."""
+
+    axis: str
+    at: int
+    lo: int
+    hi: int
+    outward: tuple[int, int]
+
+
+@dataclass(frozen=True)
+class RoomGeo:
+    """A room as the model sees it.
+
+    ``hard``: floor nothing may use (outside the room, fittings); ``clear``: floor kept free of
+    furniture but usable by zones (door approach, fitting use zones), by door id / fitting id;
+    ``walkways``: door walkways (strengthening only); ``bands``: window bands with the sill.
+    """
+
+    room: Room
+    bbox: Rect
+    hard: tuple[Rect, ...]
+    clear: tuple[tuple[str, tuple[Rect, ...]], ...]
+    walkways: tuple[Rect, ...]
+    bands: tuple[tuple[str, int, tuple[Rect, ...]], ...]
+    walls: tuple[Wall, ...]
+    windows: tuple[tuple[Wall, int, int, int, int], ...]  # wall, lo, hi, centre x, centre y
+    fittings: tuple[Rect, ...]
+
+
+def load_preferences() -> dict:
+    """The objective's weights from ``roomfit/data/preferences.toml``."""
+    path = resources.files("roomfit") / "data" / "preferences.toml"
+    return tomllib.loads(path.read_text(encoding="utf-8"))
+
+
+def _is_rectilinear(geom: BaseGeometry) -> bool:
+    polys = getattr(geom, "geoms", [geom])
+    for p in polys:
+        if not isinstance(p, Polygon):
+            return False
+        for ring in (p.exterior, *p.interiors):
+            c = list(ring.coords)
+            for (ax, ay), (bx, by) in zip(c, c[1:], strict=False):
+                if ax != bx and ay != by:
+                    return False
+                if ax != int(ax) or ay != int(ay):
+                    return False
+    return True
+
+
+def _merge(mask: np.ndarray, xs: list[int], ys: list[int]) -> list[Rect]:
+    """Greedy merge of marked cells ``mask[i, j]`` (cell i along x, j along y) into rectangles."""
+    used = np.zeros_like(mask)
+    out: list[Rect] = []
+    nx, ny = mask.shape
+    for j in range(ny):
+        for i in range(nx):
+            if not mask[i, j] or used[i, j]:
+                continue
+            i1 = i
+            while i1 + 1 < nx and mask[i1 + 1, j] and not used[i1 + 1, j]:
+                i1 += 1
+            j1 = j
+            while j1 + 1 < ny and all(mask[k, j1 + 1] and not used[k, j1 + 1] for k in range(i, i1 + 1)):
+                j1 += 1
+            used[i:i1 + 1, j:j1 + 1] = True
+            out.append((xs[i], ys[j], xs[i1 + 1], ys[j1 + 1]))
+    return out
+
+
+def cover_rects(geom: BaseGeometry, step: int) -> list[Rect]:
+    """Axis-aligned integer rectangles whose union covers ``geom`` (conservatively).
+
+    Rectilinear shapes with integer corners are covered exactly; other shapes (arcs, angled
+    walls) are covered by every ``step``-mm grid cell their interior touches.
+
+    >>> cover_rects(box(0, 0, 100, 50), 50)
+    [(0, 0, 100, 50)]
+    """
+    if geom.is_empty or geom.area <= 1e-6:
+        return []
+    x0, y0, x1, y1 = geom.bounds
+    if _is_rectilinear(geom):
+        xs = sorted({int(c[0]) for p in getattr(geom, "geoms", [geom]) for c in p.exterior.coords}
+                    | {int(c[0]) for p in getattr(geom, "geoms", [geom]) for r in p.interiors
+                       for c in r.coords})
+        ys = sorted({int(c[1]) for p in getattr(geom, "geoms", [geom]) for c in p.exterior.coords}
+                    | {int(c[1]) for p in getattr(geom, "geoms", [geom]) for r in p.interiors
+                       for c in r.coords})
+    else:
+        lo_x, hi_x = math.floor(x0), math.ceil(x1)
+        lo_y, hi_y = math.floor(y0), math.ceil(y1)
+        xs = sorted({lo_x, hi_x} | set(range((lo_x // step + 1) * step, hi_x, step)))
+        ys = sorted({lo_y, hi_y} | set(range((lo_y // step + 1) * step, hi_y, step)))
+    nx, ny = len(xs) - 1, len(ys) - 1
+    gx0 = np.repeat(np.array(xs[:-1]), ny)
+    gx1 = np.repeat(np.array(xs[1:]), ny)
+    gy0 = np.tile(np.array(ys[:-1]), nx)
+    gy1 = np.tile(np.array(ys[1:]), nx)
+    cells = shapely.box(gx0, gy0, gx1, gy1)
+    area = shapely.area(shapely.intersection(cells, geom))
+    mask = (area > 1e-3).reshape(nx, ny)
+    return _merge(mask, xs, ys)
+
+
+def _walls(room: Room) -> list[Wall]:
+    poly = room_polygon(room)
+    pts = list(room.outline)
+    out = []
+    for i, (a, b) in enumerate(zip(pts, pts[1:] + pts[:1], strict=True)):
+        del i
+        if a[0] == b[0]:
+            lo, hi = sorted((a[1], b[1]))
+            mid = (a[0], (lo + hi) / 2)
+            inside_right = poly.contains(shapely.Point(mid[0] + 1, mid[1]))
+            out.append(Wall("x", a[0], lo, hi, (-1, 0) if inside_right else (1, 0)))
+        elif a[1] == b[1]:
+            lo, hi = sorted((a[0], b[0]))
+            mid = ((lo + hi) / 2, a[1])
+            inside_up = poly.contains(shapely.Point(mid[0], mid[1] + 1))
+            out.append(Wall("y", a[1], lo, hi, (0, -1) if inside_up else (0, 1)))
+    return out
+
+
+def room_geometry(plan: Plan, rules: RuleSet, room: Room, grid: int) -> RoomGeo:
+    """Derive a room's model geometry from the plan and the rule set."""
+    poly = room_polygon(room)
+    bx0, by0, bx1, by1 = (int(math.floor(v)) for v in poly.bounds)
+    bbox = (bx0, by0, bx1, by1)
+    fittings = []
+    clear: list[tuple[str, tuple[Rect, ...]]] = []
+    solid = [box(*bbox).difference(poly)]
+    for f in plan.fixtures:
+        if f.room != room.id:
+            continue
+        shape = fixture_polygon(f).intersection(poly)
+        solid.append(shape)
+        fittings += cover_rects(shape, grid)
+        z = fixture_zone(f)
+        if z is not None:
+            clear.append((f"fixture.{f.id}", tuple(cover_rects(z.intersection(poly), grid))))
+    hard = cover_rects(shapely.union_all(solid), grid)
+    route = rules.mm("route.width")
+    walkways: list[Rect] = []
+    for ds in door_shapes(plan, rules):
+        if room.id not in ds.inward:
+            continue
+        if room.id in ds.approach:
+            clear.append((f"door.{ds.door.id}", tuple(cover_rects(ds.approach[room.id], grid))))
+        n = ds.inward[room.id]
+        (ax, ay), (bx, by) = ds.opening.coords
+        half = max(ds.door.width, route) / 2
+        cx, cy = (ax + bx) / 2, (ay + by) / 2
+        ux, uy = (bx - ax) / ds.door.width, (by - ay) / ds.door.width
+        depth = 2 * route
+        corners = [(cx - ux * half, cy - uy * half), (cx + ux * half, cy + uy * half)]
+        corners += [(px + n[0] * depth, py + n[1] * depth) for px, py in reversed(corners)]
+        walkways += cover_rects(Polygon(corners).intersection(poly), grid)
+    band_depth = rules.mm("window.band")
+    walls = _walls(room)
+    bands = []
+    windows = []
+    for w in plan.windows:
+        if w.room != room.id:
+            continue
+        if band_depth > 0:
+            bands.append((w.id, w.sill, tuple(cover_rects(window_band(plan, w, band_depth), grid))))
+        for wall in walls:
+            along = w.at[1] if wall.axis == "x" else w.at[0]
+            across = w.at[0] if wall.axis == "x" else w.at[1]
+            if across == wall.at and wall.lo <= along <= wall.hi:
+                windows.append((wall, along - w.width // 2, along + (w.width + 1) // 2, w.at[0], w.at[1]))
+    return RoomGeo(room, bbox, tuple(hard), tuple(clear), tuple(walkways), tuple(bands),
+                   tuple(walls), tuple(windows), tuple(fittings))
+
+
+def cross_thickness(diameter: int) -> int:
+    """Thickness of each bar of the cross that holds a turning circle of ``diameter`` (mm).
+
+    A circle of radius r lies inside the union of the bars |x| <= t/2 and |y| <= t/2 (each r
+    long either way) when t/2 >= r sin 45 deg = 0.7071 r; we round 0.71 D up and add 1 mm for
+    the integer centre.
+
+    >>> cross_thickness(1500)
+    1066
+    """
+    return math.ceil(0.71 * diameter) + 1
+
+
+@dataclass
+class PieceVars:
+    """Variables of one piece: position, one literal per (room, rotation), sizes per rotation."""
+
+    spec: PieceSpec
+    x: cp_model.IntVar
+    y: cp_model.IntVar
+    alts: dict[tuple[str, int], cp_model.IntVar]
+    locked: bool
+    walls: dict[tuple[str, int], list[cp_model.IntVar]] = field(default_factory=dict)
+
+    def size(self, rot: int) -> tuple[int, int]:
+        return (self.spec.width, self.spec.depth) if rot in (0, 180) else (self.spec.depth, self.spec.width)
+
+    def width_expr(self) -> cp_model.LinearExpr:
+        return sum(lit * self.size(rot)[0] for (_, rot), lit in self.alts.items())
+
+    def depth_expr(self) -> cp_model.LinearExpr:
+        return sum(lit * self.size(rot)[1] for (_, rot), lit in self.alts.items())
+
+    def in_room(self, room: str) -> cp_model.LinearExpr:
+        return sum(lit for (r, _), lit in self.alts.items() if r == room)
+
+
+@dataclass
+class Built:
+    """A built model with the index that maps variables back to pieces.
+
+    ``groups`` maps a rule-group id (``piece.<id>``, ``zone.<id>``, ``wall.<id>``,
+    ``turning.<room>``, ``door.<id>``, ``window.<id>``, ``fixture.<id>``) to its assumption
+    literal; empty unless built with ``assume=True``.
+    """
+
+    model: cp_model.CpModel
+    pieces: list[PieceVars]
+    rooms: dict[str, RoomGeo]
+    groups: dict[str, cp_model.IntVar]
+    has_objective: bool
+    route: int
+
+
+def _fixed_box(m: cp_model.CpModel, r: Rect, lit: cp_model.IntVar | None = None):
+    x0, y0, x1, y1 = r
+    if lit is None:
+        return (m.NewFixedSizeIntervalVar(x0, x1 - x0, ""), m.NewFixedSizeIntervalVar(y0, y1 - y0, ""))
+    return (m.NewOptionalFixedSizeIntervalVar(x0, x1 - x0, lit, ""),
+            m.NewOptionalFixedSizeIntervalVar(y0, y1 - y0, lit, ""))
+
+
+#: Added to the route width in the gap rules (mm): a gap exactly as wide as the route closes
+#: up when the checker shrinks the floor with a polygonal disc.
+ROUTE_MARGIN = 10
+
+#: When True, positions are restricted to the grid and flush positions; when False, only to
+#: their range (CP-SAT's presolve is far slower on long lists of single values).
+GRID_DOMAINS = False
+
+
+def _pos_var(m: cp_model.CpModel, values: set[int], name: str) -> cp_model.IntVar:
+    if GRID_DOMAINS or len(values) == 1:
+        return m.NewIntVarFromDomain(cp_model.Domain.FromValues(sorted(values)), name)
+    return m.NewIntVar(min(values), max(values), name)
+
+
+def _no_overlap(m: cp_model.CpModel, boxes: list) -> None:
+    if len(boxes) > 1:
+        m.AddNoOverlap2D([b[0] for b in boxes], [b[1] for b in boxes])
+
+
+def _positions(lo: int, hi: int, grid: int, extra: set[int]) -> set[int]:
+    """Grid multiples in [lo, hi] plus the ``extra`` positions inside it."""
+    if hi < lo:
+        return set()
+    vals = set(range(-(-lo // grid) * grid, hi + 1, grid)) | {lo, hi}
+    return vals | {v for v in extra if lo <= v <= hi}
+
+
+def _zone_rect_expr(pv: PieceVars, rot: int, side: str, depth: int):
+    """Zone of ``pv`` at ``rot`` as (x start expr, x size, y start expr, y size)."""
+    w, d = pv.size(rot)
+    dx, dy = side_direction(side, rot)
+    if dx == 1:
+        return pv.x + w, depth, pv.y, d
+    if dx == -1:
+        return pv.x - depth, depth, pv.y, d
+    if dy == 1:
+        return pv.x, w, pv.y + d, depth
+    return pv.x, w, pv.y - depth, depth
+
+
+def build_model(
+    plan: Plan,
+    rules: RuleSet,
+    specs: list[PieceSpec],
+    rooms: list[str],
+    grid: int = 50,
+    *,
+    strengthen: bool = True,
+    assume: bool = False,
+    objective: bool = True,
+    geo: dict[str, RoomGeo] | None = None,
+) -> Built:
+    """Build the placement model for ``specs`` in ``rooms``.
+
+    ``strengthen`` adds the pairwise gap rules and door walkways; ``assume`` puts every rule
+    group behind an assumption literal (for explaining infeasibility); ``objective`` adds the
+    soft preferences. Locked pieces keep their plan placement.
+    """
+    m = cp_model.CpModel()
+    geo = geo or {r: room_geometry(plan, rules, plan.room(r), grid) for r in rooms}
+    groups: dict[str, cp_model.IntVar] = {}
+    route = math.ceil(rules.get("route.width").exact_mm) + ROUTE_MARGIN
+
+    def group(name: str) -> cp_model.IntVar | None:
+        if not assume:
+            return None
+        if name not in groups:
+            groups[name] = m.NewBoolVar(name)
+        return groups[name]
+
+    pieces: list[PieceVars] = []
+    for spec in specs:
+        piece = plan.piece(spec.id)
+        locked = piece.locked and piece.placement is not None
+        allowed = [r for r in spec.rooms if r in geo]
+        rots = [0, 90, 180, 270]
+        if locked:
+            assert piece.placement is not None
+            allowed, rots = [piece.placement.room], [piece.placement.rotation]
+        xs: set[int] = set()
+        ys: set[int] = set()
+        alt_keys = []
+        for r in allowed:
+            g = geo[r]
+            bx0, by0, bx1, by1 = g.bbox
+            for rot in rots:
+                w, d = (spec.width, spec.depth) if rot in (0, 180) else (spec.depth, spec.width)
+                if w > bx1 - bx0 or d > by1 - by0:
+                    continue
+                alt_keys.append((r, rot))
+                wx = {wl.at for wl in g.walls if wl.axis == "x"}
+                wy = {wl.at for wl in g.walls if wl.axis == "y"}
+                xs |= _positions(bx0, bx1 - w, grid, wx | {v - w for v in wx})
+                ys |= _positions(by0, by1 - d, grid, wy | {v - d for v in wy})
+        if locked:
+            assert piece.placement is not None
+            xs, ys = {piece.placement.x}, {piece.placement.y}
+        if not alt_keys:
+            xs, ys = {0}, {0}
+        x = _pos_var(m, xs, f"x_{spec.id}")
+        y = _pos_var(m, ys, f"y_{spec.id}")
+        alts = {k: m.NewBoolVar(f"a_{spec.id}_{k[0]}_{k[1]}") for k in alt_keys}
+        pv = PieceVars(spec, x, y, alts, locked)
+        present = group(f"piece.{spec.id}")
+        if present is None:
+            m.AddExactlyOne(alts.values())
+        else:
+            m.Add(sum(alts.values()) <= 1)
+            m.Add(sum(alts.values()) >= 1).OnlyEnforceIf(present)
+        for (r, rot), lit in alts.items():
+            bx0, by0, bx1, by1 = geo[r].bbox
+            w, d = pv.size(rot)
+            m.Add(x >= bx0).OnlyEnforceIf(lit)
+            m.Add(x + w <= bx1).OnlyEnforceIf(lit)
+            m.Add(y >= by0).OnlyEnforceIf(lit)
+            m.Add(y + d <= by1).OnlyEnforceIf(lit)
+        pieces.append(pv)
+
+    prefs = load_preferences()
+    wall_lovers = set(prefs["wall"]["categories"])
+    for pv in pieces:
+        need = pv.spec.against_wall
+        if not (need or pv.spec.category in wall_lovers) or pv.locked:
+            continue
+        wall_grp = group(f"wall.{pv.spec.id}") if need else None
+        for (r, rot), lit in pv.alts.items():
+            w, d = pv.size(rot)
+            back = side_direction("back", rot)
+            choices = []
+            for wl in geo[r].walls:
+                if wl.outward != back:
+                    continue
+                c = m.NewBoolVar("")
+                if wl.axis == "x":
+                    span = d
+                    m.Add(pv.x == (wl.at if back[0] == -1 else wl.at - w)).OnlyEnforceIf(c)
+                    m.Add(pv.y >= wl.lo).OnlyEnforceIf(c)
+                    m.Add(pv.y + span <= wl.hi).OnlyEnforceIf(c)
+                else:
+                    span = w
+                    m.Add(pv.y == (wl.at if back[1] == -1 else wl.at - d)).OnlyEnforceIf(c)
+                    m.Add(pv.x >= wl.lo).OnlyEnforceIf(c)
+                    m.Add(pv.x + span <= wl.hi).OnlyEnforceIf(c)
+                m.AddImplication(c, lit)
+                choices.append(c)
+            pv.walls[(r, rot)] = choices
+            if need:
+                if wall_grp is None:
+                    m.Add(sum(choices) == lit)
+                else:
+                    m.Add(sum(choices) == lit).OnlyEnforceIf(wall_grp)
+                    m.Add(sum(choices) <= lit)
+            else:
+                m.Add(sum(choices) <= lit)
+
+    # footprints per room
+    fp: dict[str, list[tuple[PieceVars, int, object, object]]] = {r: [] for r in geo}
+    for pv in pieces:
+        for (r, rot), lit in pv.alts.items():
+            w, d = pv.size(rot)
+            ix = m.NewOptionalFixedSizeIntervalVar(pv.x, w, lit, "")
+            iy = m.NewOptionalFixedSizeIntervalVar(pv.y, d, lit, "")
+            fp[r].append((pv, rot, ix, iy))
+
+    turning = rules.mm("turning.size")
+    shape = rules.text("turning.shape")
+    for r, g in geo.items():
+        boxes = [(ix, iy) for _, _, ix, iy in fp[r]]
+        boxes += [_fixed_box(m, rect) for rect in g.hard]
+        if turning > 0:
+            boxes += _turning_boxes(m, g, turning, shape, grid, group(f"turning.{r}"))
+        _no_overlap(m, boxes)
+        # floor kept clear of furniture (it may overlap zones and the turning space)
+        feet = [(ix, iy) for _, _, ix, iy in fp[r]]
+        if assume:
+            for gid, rects in g.clear:
+                lit = group(gid)
+                _no_overlap(m, feet + [_fixed_box(m, rect, lit) for rect in rects])
+        else:
+            keep = [box(*rect) for _, rects in g.clear for rect in rects]
+            keep += [box(*rect) for rect in g.walkways] if strengthen else []
+            if keep:
+                rects = cover_rects(shapely.union_all(keep), grid)
+                _no_overlap(m, feet + [_fixed_box(m, rect) for rect in rects])
+
+        # use zones: free of other footprints and of the hard obstacles
+        hard_boxes = [_fixed_box(m, rect) for rect in g.hard]
+        for pv in pieces:
+            if not pv.spec.zones or not any(k[0] == r for k in pv.alts):
+                continue
+            zlit = group(f"zone.{pv.spec.id}")
+            zb = []
+            for (rr, rot), lit in pv.alts.items():
+                if rr != r:
+                    continue
+                pres = lit
+                if zlit is not None:
+                    pres = m.NewBoolVar("")
+                    m.AddBoolAnd([lit, zlit]).OnlyEnforceIf(pres)
+                    m.AddBoolOr([lit.Not(), zlit.Not()]).OnlyEnforceIf(pres.Not())
+                bx0, by0, bx1, by1 = g.bbox
+                for z in pv.spec.zones:
+                    if z.depth <= 0:
+                        continue
+                    sx, wx, sy, wy = _zone_rect_expr(pv, rot, z.side, z.depth)
+                    m.Add(sx >= bx0).OnlyEnforceIf(pres)
+                    m.Add(sx + wx <= bx1).OnlyEnforceIf(pres)
+                    m.Add(sy >= by0).OnlyEnforceIf(pres)
+                    m.Add(sy + wy <= by1).OnlyEnforceIf(pres)
+                    zb.append((m.NewOptionalFixedSizeIntervalVar(sx, wx, pres, ""),
+                               m.NewOptionalFixedSizeIntervalVar(sy, wy, pres, "")))
+            if not zb:
+                continue
+            others = [(ix, iy) for q, _, ix, iy in fp[r] if q is not pv]
+            _no_overlap(m, zb + others + hard_boxes)
+
+        # window bands keep tall pieces away
+        for wid, sill, rects in g.bands:
+            tall = [(ix, iy) for q, _, ix, iy in fp[r] if q.spec.height > sill or q.spec.tall]
+            if not tall or not rects:
+                continue
+            lit = group(f"window.{wid}")
+            _no_overlap(m, tall + [_fixed_box(m, rect, lit) for rect in rects])
+
+        if strengthen:
+            _gap_rules(m, pieces, g, route, grid)
+
+    has_obj = False
+    if objective:
+        has_obj = _objective(m, pieces, geo, prefs)
+    return Built(m, pieces, geo, groups, has_obj, route)
+
+
+def _turning_boxes(m: cp_model.CpModel, g: RoomGeo, size: int, shape: str, grid: int,
+                   lit: cp_model.IntVar | None) -> list:
+    bx0, by0, bx1, by1 = g.bbox
+    if size > bx1 - bx0 or size > by1 - by0:
+        if lit is None:
+            m.AddBoolOr([])  # no room for a turning space at all: infeasible
+        else:
+            m.AddBoolOr([lit.Not()])
+        return []
+    tx = _pos_var(m, _positions(bx0, bx1 - size, grid, set()), "turn_x")
+    ty = _pos_var(m, _positions(by0, by1 - size, grid, set()), "turn_y")
+
+    def iv(start, length):
+        if lit is None:
+            return m.NewFixedSizeIntervalVar(start, length, "")
+        return m.NewOptionalFixedSizeIntervalVar(start, length, lit, "")
+
+    if shape == "square":
+        return [(iv(tx, size), iv(ty, size))]
+    t = cross_thickness(size)
+    o = (size - t) // 2
+    return [
+        (iv(tx, size), iv(ty + o, t)),
+        (iv(tx + o, t), iv(ty, o)),
+        (iv(tx + o, t), iv(ty + o + t, size - o - t)),
+    ]
+
+
+def _gap_rules(m: cp_model.CpModel, pieces: list[PieceVars], g: RoomGeo, route: int, grid: int) -> None:
+    """Two footprints in one room nearly touch (gaps at most ``grid`` both ways) or stand
+    ``route`` apart on one axis; the same between a piece and the room's walls and fittings."""
+    r = g.room.id
+    here = [pv for pv in pieces if any(k[0] == r for k in pv.alts)]
+    near = grid
+    for i, p in enumerate(here):
+        pw, pd = p.width_expr(), p.depth_expr()
+        for q in here[i + 1:]:
+            qw, qd = q.width_expr(), q.depth_expr()
+            opts = [m.NewBoolVar("") for _ in range(5)]
+            m.Add(q.x + qw + route <= p.x).OnlyEnforceIf(opts[0])
+            m.Add(p.x + pw + route <= q.x).OnlyEnforceIf(opts[1])
+            m.Add(q.y + qd + route <= p.y).OnlyEnforceIf(opts[2])
+            m.Add(p.y + pd + route <= q.y).OnlyEnforceIf(opts[3])
+            m.Add(q.x <= p.x + pw + near).OnlyEnforceIf(opts[4])
+            m.Add(p.x <= q.x + qw + near).OnlyEnforceIf(opts[4])
+            m.Add(q.y <= p.y + pd + near).OnlyEnforceIf(opts[4])
+            m.Add(p.y <= q.y + qd + near).OnlyEnforceIf(opts[4])
+            both = [p.in_room(r), q.in_room(r)]
+            enf = []
+            for e in both:
+                b = m.NewBoolVar("")
+                m.Add(e >= 1).OnlyEnforceIf(b)
+                m.Add(e == 0).OnlyEnforceIf(b.Not())
+                enf.append(b)
+            m.AddBoolOr(opts).OnlyEnforceIf(enf)
+        bx0, by0, bx1, by1 = g.bbox
+        inr = m.NewBoolVar("")
+        m.Add(p.in_room(r) >= 1).OnlyEnforceIf(inr)
+        m.Add(p.in_room(r) == 0).OnlyEnforceIf(inr.Not())
+        for rect in (*g.fittings, *g.hard, (bx0 - 1, by0, bx0, by1), (bx1, by0, bx1 + 1, by1),
+                     (bx0, by0 - 1, bx1, by0), (bx0, by1, bx1, by1 + 1)):
+            x0, y0, x1, y1 = rect
+            opts = [m.NewBoolVar("") for _ in range(5)]
+            m.Add(x1 + route <= p.x).OnlyEnforceIf(opts[0])
+            m.Add(p.x + pw + route <= x0).OnlyEnforceIf(opts[1])
+            m.Add(y1 + route <= p.y).OnlyEnforceIf(opts[2])
+            m.Add(p.y + pd + route <= y0).OnlyEnforceIf(opts[3])
+            m.Add(x0 <= p.x + pw + near).OnlyEnforceIf(opts[4])
+            m.Add(p.x <= x1 + near).OnlyEnforceIf(opts[4])
+            m.Add(y0 <= p.y + pd + near).OnlyEnforceIf(opts[4])
+            m.Add(p.y <= y1 + near).OnlyEnforceIf(opts[4])
+            m.AddBoolOr(opts).OnlyEnforceIf(inr)
+
+
+def _centre2(pv: PieceVars):
+    """Twice the footprint centre, as linear expressions (x, y)."""
+    return 2 * pv.x + pv.width_expr(), 2 * pv.y + pv.depth_expr()
+
+
+def _point2(pv: PieceVars, side: str, offset: int):
+    """Twice the point ``offset`` mm out from the middle of ``side`` (offset 0: on the side)."""
+    cx, cy = _centre2(pv)
+    ex = sum(lit * side_direction(side, rot)[0] * (_extent(pv, side) + 2 * offset)
+             for (_, rot), lit in pv.alts.items())
+    ey = sum(lit * side_direction(side, rot)[1] * (_extent(pv, side) + 2 * offset)
+             for (_, rot), lit in pv.alts.items())
+    return cx + ex, cy + ey
+
+
+def _extent(pv: PieceVars, side: str) -> int:
+    return pv.spec.depth if side in ("front", "back") else pv.spec.width
+
+
+def _l1(m: cp_model.CpModel, ax, ay, bx, by, scale: int) -> cp_model.IntVar:
+    """A variable at least the L1 distance between two doubled points, in units of ``scale`` mm."""
+    big = 10_000_000
+    dx = m.NewIntVar(0, big, "")
+    dy = m.NewIntVar(0, big, "")
+    m.AddAbsEquality(dx, ax - bx)
+    m.AddAbsEquality(dy, ay - by)
+    d = m.NewIntVar(0, big, "")
+    m.Add(d * 2 * scale >= dx + dy)
+    return d
+
+
+def _objective(m: cp_model.CpModel, pieces: list[PieceVars], geo: dict[str, RoomGeo], prefs: dict) -> bool:
+    w = prefs["weights"]
+    rel = prefs["relations"]
+    terms = []
+    by_cat: dict[str, list[PieceVars]] = {}
+    for pv in pieces:
+        by_cat.setdefault(pv.spec.category, []).append(pv)
+    for pv in pieces:
+        if pv.locked:
+            continue
+        for relation, target in pv.spec.relations:
+            cands = [t for t in by_cat.get(target, []) if set(t.spec.rooms) & set(pv.spec.rooms)]
+            if not cands:
+                continue
+            t = cands[0]
+            if relation == "beside_head":
+                tx, ty = _point2(t, "back", 0)
+                sx, sy = _centre2(pv)
+            elif relation == "in_front":
+                gap = int(rel["coffee_gap"]) + min(pv.spec.width, pv.spec.depth) // 2
+                tx, ty = _point2(t, "front", gap)
+                sx, sy = _centre2(pv)
+            elif relation == "facing":
+                tx, ty = _point2(pv, "front", int(rel["viewing_distance"]))
+                sx, sy = _centre2(t)
+            else:
+                continue
+            terms.append(int(w["relation"]) * _l1(m, tx, ty, sx, sy, 10))
+        # wall-loving pieces not against a wall
+        if not pv.spec.against_wall and pv.walls:
+            on = sum(sum(c) for c in pv.walls.values())
+            off = m.NewBoolVar("")
+            m.Add(on == 0).OnlyEnforceIf(off)
+            m.Add(on >= 1).OnlyEnforceIf(off.Not())
+            terms.append(int(w["wall"]) * off)
+        if pv.spec.category == "bed":
+            for (r, rot), choices in pv.walls.items():
+                for wl_lit, wl in zip(choices, [x for x in geo[r].walls
+                                                if x.outward == side_direction("back", rot)], strict=True):
+                    for wall, lo, hi, _, _ in geo[r].windows:
+                        if wall != wl:
+                            continue
+                        along = pv.x if wall.axis == "y" else pv.y
+                        span = pv.size(rot)[0] if wall.axis == "y" else pv.size(rot)[1]
+                        left, right, pen = m.NewBoolVar(""), m.NewBoolVar(""), m.NewBoolVar("")
+                        m.Add(along + span <= lo).OnlyEnforceIf(left)
+                        m.Add(along >= hi).OnlyEnforceIf(right)
+                        m.AddBoolOr([left, right, pen, wl_lit.Not()])
+                        terms.append(int(w["bed_under_window"]) * pen)
+        if pv.spec.category == "desk":
+            wins = [(cx, cy) for r in pv.spec.rooms if r in geo for *_, cx, cy in geo[r].windows]
+            if wins:
+                sx, sy = _centre2(pv)
+                ds = [_l1(m, sx, sy, 2 * cx, 2 * cy, 10) for cx, cy in wins]
+                best = m.NewIntVar(0, 10_000_000, "")
+                m.AddMinEquality(best, ds)
+                terms.append(int(w["daylight"]) * best)
+    if not terms:
+        return False
+    m.Minimize(sum(terms))
+    return True
+
+
+def decode(built: Built, solver: cp_model.CpSolver) -> dict[str, Placement]:
+    """Placements of the built model's pieces in the solver's current solution."""
+    out = {}
+    for pv in built.pieces:
+        for (r, rot), lit in pv.alts.items():
+            if solver.Value(lit):
+                out[pv.spec.id] = Placement(solver.Value(pv.x), solver.Value(pv.y), rot, r)
+    return out
+
+
+def _symmetric(spec: PieceSpec) -> bool:
+    """True when turning the piece by 180 degrees leaves its footprint and zones the same."""
+    flip = {"front": "back", "back": "front", "left": "right", "right": "left"}
+    zs = {(z.side, z.depth) for z in spec.zones}
+    return zs == {(flip[s], d) for s, d in zs} and not spec.against_wall
+
+
+def differs(m: cp_model.CpModel, pv: PieceVars, where: Placement, move: int) -> list[cp_model.IntVar]:
+    """Literals whose disjunction says ``pv`` no longer stands as ``where`` says: another room
+    or turn (180-degree turns of symmetric pieces do not count), or moved ``move`` mm or more."""
+    out = []
+    same = [lit for (r, rot), lit in pv.alts.items()
+            if r == where.room and (rot == where.rotation or
+                                    (_symmetric(pv.spec) and rot % 180 == where.rotation % 180))]
+    other = [lit for lit in pv.alts.values() if all(lit is not s for s in same)]
+    out += other
+    for var, v in ((pv.x, where.x), (pv.y, where.y)):
+        a, b = m.NewBoolVar(""), m.NewBoolVar("")
+        m.Add(var >= v + move).OnlyEnforceIf(a)
+        m.Add(var <= v - move).OnlyEnforceIf(b)
+        out += [a, b]
+    return out

@@ -1,0 +1,404 @@
+"""Find furniture arrangements: CP-SAT search, verified by the checker, several alternatives.
+
+``solve(plan, rules, options)`` splits the plan into groups of rooms that share no piece
+(rooms whose pieces are all assigned stand alone), builds the placement model of each group
+(``roomfit.model``), and runs a verify-and-cut loop: every layout CP-SAT returns is audited
+with exact geometry (``roomfit.check.audit``); a layout that fails is cut off (one of the
+pieces the failed finding names must move or turn) and the model is solved again. Only
+layouts that pass the audit are returned.
+
+Outcomes (``SolveResult.status``): ``optimal`` (the best candidate is proven optimal for the
+soft preferences), ``found`` (candidates found, not all proven optimal), ``impossible`` (no
+arrangement exists in the model, with an :class:`Explanation`), ``timeout`` (nothing
+checker-passing found in time; not proven impossible).
+
+The search first runs a *strengthened* model (pairwise gap rules and door walkways, see
+``roomfit.model``) that avoids most circulation failures; if that model has no valid layout
+it falls back to the plain model. "Impossible" is only said of the plain model, never of the
+strengthened one nor after a cut.
+
+Reproducible: the seed, the worker count and CP-SAT's interleaved (deterministic) parallel
+search with a deterministic time budget give the same candidates for the same inputs; the
+wall-clock limit is a safety net on top.
+"""
+
+from __future__ import annotations
+
+import time
+from collections.abc import Callable
+from dataclasses import dataclass, replace
+
+from ortools.sat.python import cp_model
+
+from roomfit.catalog import PieceSpec, resolve_pieces
+from roomfit.explain import Explanation, explain, precheck
+from roomfit.model import Built, build_model, decode, differs, room_geometry
+from roomfit.plan import Layout, Placement, Plan
+from roomfit.rules import RuleSet
+
+__all__ = [
+    "SolveOptions",
+    "Candidate",
+    "Explanation",
+    "SolveStats",
+    "SolveResult",
+    "STATUSES",
+    "solve",
+    "components",
+]
+
+STATUSES = ("found", "optimal", "impossible", "timeout")
+
+#: A later candidate must differ from every earlier one in at least this many pieces
+#: (fewer when the group has fewer movable pieces): another room, another turn (a
+#: 180-degree turn of a symmetric piece does not count), or a move of at least
+#: ``_MOVE`` mm along x or y.
+_DIFFER_PIECES = 2
+_MOVE = 300
+
+#: Improving solutions of one CP-SAT run audited at most (best first).
+_AUDITS_PER_SOLVE = 4
+
+
+@dataclass(frozen=True)
+class SolveOptions:
+    """How to search: number of candidates, wall-clock limit (s) over all rounds, seed,
+    CP-SAT workers, and the position grid (mm)."""
+
+    candidates: int = 3
+    time_limit: float = 20.0
+    seed: int = 0
+    workers: int = 2
+    grid: int = 50
+
+
+@dataclass(frozen=True)
+class Candidate:
+    """One verified arrangement: ``objective`` (lower is better), the proven ``bound``,
+    whether it is proven ``optimal`` (under the diversity rules of earlier candidates), and its
+    ``rank`` (0 = best)."""
+
+    layout: Layout
+    objective: float
+    bound: float
+    optimal: bool
+    rank: int
+
+    @property
+    def gap(self) -> float:
+        """Relative gap between objective and bound (0 when proven optimal)."""
+        if self.optimal or self.objective == 0:
+            return 0.0
+        return abs(self.objective - self.bound) / abs(self.objective)
+
+
+@dataclass(frozen=True)
+class SolveStats:
+    """What the search did: wall-clock seconds in all, seconds to the first checker-passing
+    layout, CP-SAT solves, audits run, audits failed (each added a cut), whether the plain
+    model was needed, and the number of independent room groups."""
+
+    elapsed: float = 0.0
+    time_to_first: float | None = None
+    solves: int = 0
+    audits: int = 0
+    cuts: int = 0
+    fallback: bool = False
+    groups: int = 0
+
+
+@dataclass(frozen=True)
+class SolveResult:
+    status: str
+    candidates: tuple[Candidate, ...]
+    explanation: Explanation | None
+    stats: SolveStats
+
+    @property
+    def found(self) -> bool:
+        return bool(self.candidates)
+
+
+def components(plan: Plan, specs: tuple[PieceSpec, ...]) -> list[tuple[list[str], list[PieceSpec]]]:
+    """Groups of rooms that share no piece, each with its pieces, in plan order.
+
+    Rooms without furniture are left out (nothing to place there).
+    """
+    parent: dict[str, str] = {r.id: r.id for r in plan.rooms}
+
+    def find(a: str) -> str:
+        while parent[a] != a:
+            parent[a] = parent[parent[a]]
+            a = parent[a]
+        return a
+
+    for s in specs:
+        rooms = _rooms_of(plan, s)
+        for r in rooms[1:]:
+            parent[find(r)] = find(rooms[0])
+    out: dict[str, tuple[list[str], list[PieceSpec]]] = {}
+    for s in specs:
+        root = find(_rooms_of(plan, s)[0])
+        out.setdefault(root, ([], []))[1].append(s)
+    for r in plan.rooms:
+        root = find(r.id)
+        if root in out:
+            out[root][0].append(r.id)
+    return list(out.values())
+
+
+def _rooms_of(plan: Plan, spec: PieceSpec) -> tuple[str, ...]:
+    p = plan.piece(spec.id)
+    if p.locked and p.placement is not None:
+        return (p.placement.room,)
+    return spec.rooms
+
+
+@dataclass
+class _Found:
+    placements: dict[str, Placement]
+    objective: float
+    bound: float
+    optimal: bool
+
+
+class _Clock:
+    def __init__(self, limit: float) -> None:
+        self.start = time.monotonic()
+        self.deadline = self.start + limit
+
+    def left(self) -> float:
+        return max(0.0, self.deadline - time.monotonic())
+
+    def elapsed(self) -> float:
+        return time.monotonic() - self.start
+
+
+def _params(solver: cp_model.CpSolver, options: SolveOptions, seconds: float) -> None:
+    p = solver.parameters
+    p.num_workers = max(1, options.workers)
+    p.random_seed = options.seed
+    p.max_time_in_seconds = max(0.05, seconds)
+    # deterministic parallel search: same seed, same answer
+    p.interleave_search = options.workers > 1
+    p.max_deterministic_time = max(0.05, seconds)
+
+
+def _audit(plan: Plan, rules: RuleSet):
+    from roomfit.check import audit  # the judge; imported here to keep the import graph one-way
+
+    return audit(plan, rules)
+
+
+def _only(plan: Plan, ids: set[str], where: dict[str, Placement]) -> Plan:
+    """``plan`` with just the pieces ``ids``, placed as ``where`` says."""
+    pieces = tuple(replace(p, placement=where[p.id]) for p in plan.furniture if p.id in ids)
+    return replace(plan, furniture=pieces)
+
+
+class _Collect(cp_model.CpSolverSolutionCallback):
+    """Keeps every improving solution; audits the first one at once when no layout of the
+    search has passed yet (so the time to the first valid layout is known early)."""
+
+    def __init__(self, search: _Search, built: Built) -> None:
+        super().__init__()
+        self.search, self.built = search, built
+        self.solutions: list[tuple[float, dict[str, Placement]]] = []
+        self.verdicts: dict[int, object] = {}
+
+    def on_solution_callback(self) -> None:
+        where = decode(self.built, self)
+        obj = self.ObjectiveValue() if self.built.has_objective else 0.0
+        self.solutions.append((obj, where))
+        counters = self.search.counters
+        if counters.get("first") is None and len(self.solutions) == 1:
+            verdict = self.search._judge(where)
+            self.verdicts[id(where)] = verdict
+            if verdict.passed:
+                counters["first"] = self.search.clock.elapsed()
+
+
+class _Search:
+    """The verify-and-cut loop for one group of rooms."""
+
+    def __init__(self, plan: Plan, rules: RuleSet, rooms: list[str], specs: list[PieceSpec],
+                 options: SolveOptions, clock: _Clock, progress: Callable[[str], None] | None,
+                 counters: dict[str, float]) -> None:
+        self.plan, self.rules, self.rooms, self.specs = plan, rules, rooms, specs
+        self.options, self.clock, self.progress, self.counters = options, clock, progress, counters
+        self.ids = {s.id for s in specs}
+        self.geo = {r: room_geometry(plan, rules, plan.room(r), options.grid) for r in rooms}
+        self.found: list[_Found] = []
+        self.impossible = False
+
+    def _say(self, text: str) -> None:
+        if self.progress is not None:
+            self.progress(f"[{self.clock.elapsed():6.2f} s] {text}")
+
+    def run(self, wanted: int, budget_end: float) -> None:
+        for strengthen in (True, False):
+            if strengthen is False:
+                self.counters["fallback"] = 1
+            outcome = self._loop(strengthen, wanted, budget_end)
+            if self.found or outcome == "time":
+                return
+            if outcome == "infeasible-plain":
+                self.impossible = True
+                return
+
+    def _loop(self, strengthen: bool, wanted: int, budget_end: float) -> str:
+        built = build_model(self.plan, self.rules, self.specs, self.rooms, self.options.grid,
+                            strengthen=strengthen, geo=self.geo)
+        cut = False
+        movable = [pv for pv in built.pieces if not pv.locked]
+        while len(self.found) < wanted:
+            left = budget_end - time.monotonic()
+            if left <= 0.01:
+                return "time"
+            share = left / (wanted - len(self.found))
+            if not self.found:
+                share = max(share, 0.6 * left)
+            solver = cp_model.CpSolver()
+            _params(solver, self.options, share)
+            seen = _Collect(self, built)
+            status = solver.Solve(built.model, seen)
+            self.counters["solves"] += 1
+            if status == cp_model.INFEASIBLE:
+                if not strengthen and not cut and not self.found:
+                    return "infeasible-plain"
+                return "infeasible"
+            if status not in (cp_model.OPTIMAL, cp_model.FEASIBLE):
+                continue  # nothing within this share; the next round gets what is left
+            optimal = status == cp_model.OPTIMAL
+            bound = solver.BestObjectiveBound() if built.has_objective else 0.0
+            accepted = None
+            # best first; the last (best) solution may be proven optimal
+            for k, (obj, where) in enumerate(list(reversed(seen.solutions))[:_AUDITS_PER_SOLVE]):
+                result = seen.verdicts.get(id(where)) or self._judge(where)
+                if result.passed:
+                    accepted = _Found(where, obj, bound, optimal and k == 0)
+                    break
+                self._cut(built, movable, where, result)
+                cut = True
+            if accepted is None:
+                continue
+            self.found.append(accepted)
+            if self.counters.get("first") is None:
+                self.counters["first"] = self.clock.elapsed()
+            self._say(f"rooms {', '.join(self.rooms)}: candidate {len(self.found)} "
+                      f"(objective {accepted.objective:g}{', optimal' if accepted.optimal else ''})")
+            self._forbid_near(built, movable, accepted.placements)
+            cut = True
+        return "done"
+
+    def _judge(self, where: dict[str, Placement]):
+        self.counters["audits"] += 1
+        return _audit(_only(self.plan, self.ids, where), self.rules)
+
+    def _cut(self, built: Built, movable: list, where: dict[str, Placement], result) -> None:
+        """Forbid ``where``: one of the pieces next to a failure must move or turn."""
+        self.counters["cuts"] += 1
+        names = {pid for f in result.failures for pid in f.pieces} & self.ids
+        pvs = [pv for pv in movable if pv.spec.id in names] or movable
+        failed = sorted({f.rule for f in result.failures})
+        self._say(f"rooms {', '.join(self.rooms)}: layout failed {', '.join(failed)}; "
+                  f"one of {', '.join(pv.spec.id for pv in pvs)} must move")
+        step = max(self.options.grid, built.route // 2)
+        lits = [lit for pv in pvs for lit in differs(built.model, pv, where[pv.spec.id], step)]
+        built.model.AddBoolOr(lits)
+
+    def _forbid_near(self, built: Built, movable: list, where: dict[str, Placement]) -> None:
+        if not movable:
+            return
+        m = built.model
+        need = min(_DIFFER_PIECES, len(movable))
+        flags = []
+        for pv in movable:
+            d = m.NewBoolVar("")
+            m.AddBoolOr([*differs(m, pv, where[pv.spec.id], _MOVE), d.Not()])
+            flags.append(d)
+        m.Add(sum(flags) >= need)
+
+
+def solve(plan: Plan, rules: RuleSet, options: SolveOptions | None = None,
+          progress: Callable[[str], None] | None = None) -> SolveResult:
+    """Find up to ``options.candidates`` checker-passing arrangements of ``plan``'s furniture.
+
+    ``progress``, when given, receives one line per event (candidate found, cut added).
+    """
+    options = options or SolveOptions()
+    clock = _Clock(options.time_limit)
+    specs = resolve_pieces(plan, rules)
+    counters: dict[str, float] = {"solves": 0, "audits": 0, "cuts": 0, "fallback": 0}
+    groups = components(plan, specs)
+
+    def stats() -> SolveStats:
+        return SolveStats(clock.elapsed(), counters.get("first"), int(counters["solves"]),
+                          int(counters["audits"]), int(counters["cuts"]), bool(counters["fallback"]),
+                          len(groups))
+
+    early = precheck(plan, rules, specs)
+    if early is not None:
+        return SolveResult("impossible", (), early, stats())
+    bare = _bare_faults(plan, rules, counters)
+    if bare is not None:
+        return SolveResult("impossible", (), bare, stats())
+
+    searches = []
+    for i, (rooms, group_specs) in enumerate(groups):
+        s = _Search(plan, rules, rooms, group_specs, options, clock, progress, counters)
+        budget_end = time.monotonic() + clock.left() / (len(groups) - i)
+        s.run(options.candidates, budget_end)
+        searches.append(s)
+        if s.impossible:
+            expl = explain(plan, rules, group_specs, rooms, options, clock.deadline)
+            return SolveResult("impossible", (), expl, stats())
+        if not s.found:
+            return SolveResult("timeout", (), None, stats())
+
+    candidates = _combine(plan, rules, searches, options.candidates, counters)
+    if not candidates:
+        return SolveResult("timeout", (), None, stats())
+    status = "optimal" if candidates[0].optimal else "found"
+    return SolveResult(status, tuple(candidates), None, stats())
+
+
+def _combine(plan: Plan, rules: RuleSet, searches: list[_Search], wanted: int,
+             counters: dict[str, float]) -> list[Candidate]:
+    """Candidate i takes the i-th layout of every group (the last one where a group has fewer);
+    every combined layout is audited once more on the whole plan."""
+    out: list[Candidate] = []
+    most = max(len(s.found) for s in searches)
+    for i in range(min(wanted, most)):
+        picks = [s.found[min(i, len(s.found) - 1)] for s in searches]
+        where: dict[str, Placement] = {}
+        for f in picks:
+            where.update(f.placements)
+        layout = tuple((p.id, where.get(p.id, p.placement)) for p in plan.furniture
+                       if where.get(p.id, p.placement) is not None)
+        counters["audits"] += 1
+        if not _audit(plan.with_layout(layout), rules).passed:
+            continue
+        out.append(Candidate(layout, sum(f.objective for f in picks), sum(f.bound for f in picks),
+                             all(f.optimal for f in picks), len(out)))
+    return out
+
+
+
+def _bare_faults(plan: Plan, rules: RuleSet, counters: dict[str, float]) -> Explanation | None:
+    """The apartment without its movable furniture already fails the audit: no arrangement
+    can pass, so say so (locked pieces stay, they cannot be moved)."""
+    kept = tuple(p for p in plan.furniture if p.locked and p.placement is not None)
+    counters["audits"] += 1
+    result = _audit(replace(plan, furniture=kept), rules)
+    if result.passed:
+        return None
+    fails = result.failures
+    ids = tuple(dict.fromkeys(i for f in fails for i in f.pieces))
+    rule_ids = tuple(dict.fromkeys(f.rule for f in fails))
+    listed = "; ".join(f.message for f in fails[:5]) + ("; ..." if len(fails) > 5 else "")
+    return Explanation(
+        f"The apartment does not pass the {rules.label} rules even before the furniture is "
+        f"placed, so no arrangement can: {listed}.",
+        ids, rule_ids,
+        ("change the plan (doors, fittings) or choose the rule set that governs this home",))
