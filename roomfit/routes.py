@@ -500,8 +500,8 @@ def _segments(geoms: Sequence[BaseGeometry]) -> np.ndarray:
 def _chords(segs: np.ndarray, p: np.ndarray, cap: float) -> tuple[np.ndarray, np.ndarray]:
     """Chords through ``p`` between blockers in 5 degree steps: lengths and end points.
 
-    Rays are cast against the blockers' straight edges (``segs``) in closed form; a ray that
-    meets nothing within ``cap`` stops there.
+    Rays are cast against the blockers' straight edges (``segs``) in closed form; a chord
+    with a half that meets nothing within ``cap`` counts as ``2 * cap`` long.
     """
     ang = np.radians(np.arange(0, 360, _CHORD_STEP))
     d = np.stack([np.cos(ang), np.sin(ang)], axis=1)              # rays x 2
@@ -514,10 +514,12 @@ def _chords(segs: np.ndarray, p: np.ndarray, cap: float) -> tuple[np.ndarray, np
         t = (ap[None, :, 0] * e[None, :, 1] - ap[None, :, 1] * e[None, :, 0]) / den
         s = (ap[None, :, 0] * d[:, None, 1] - ap[None, :, 1] * d[:, None, 0]) / den
     hit = (np.abs(den) > 1e-12) & (t >= 0) & (s >= -1e-9) & (s <= 1 + 1e-9)
-    dist = np.minimum(np.where(hit, t, np.inf).min(axis=1, initial=np.inf), cap)
-    ends = p + d * dist[:, None]
+    dist = np.where(hit, t, np.inf).min(axis=1, initial=np.inf)
+    dist[dist > cap] = np.inf
+    ends = p + d * np.minimum(dist, cap)[:, None]
     half = len(ang) // 2
-    return dist[:half] + dist[half:], np.stack([ends[:half], ends[half:]], axis=1)
+    lengths = np.minimum(dist[:half] + dist[half:], 2 * cap)
+    return lengths, np.stack([ends[:half], ends[half:]], axis=1)
 
 
 def _ring_at(base: _Base, q: np.ndarray) -> tuple[int, float] | None:

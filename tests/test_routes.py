@@ -44,14 +44,15 @@ def _plan(rooms, furniture=(), doors=(), fixtures=(), routines=()) -> Plan:
 
 
 def test_empty_convex_room_is_a_straight_line():
-    plan = _plan([_room("r", 0, 0, 4000, 3000)])
+    plan = _plan([_room("r", 0, 0, 4000, 2400)])
     t = route(plan, EVERYDAY, (1000, 1000), (3000, 2000))
     # by hand: sqrt(2000^2 + 1000^2) = 2236.068 mm
     assert t.reachable
     assert t.length_mm == pytest.approx(math.sqrt(2000**2 + 1000**2), abs=1e-6)
     assert t.turns == 0 and t.doors == ()
-    # the shortest chord through any point of the route is the room's 3000 mm depth
-    assert t.narrowest_mm == pytest.approx(3000, abs=1)
+    # the shortest chord through any point of the route is the room's 2400 mm depth (the
+    # diagonals across the room's corners are corners, not passages)
+    assert t.narrowest_mm == pytest.approx(2400, abs=1)
 
 
 def test_l_shaped_room_bends_at_the_shrunk_corner():
