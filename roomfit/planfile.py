@@ -16,6 +16,7 @@ import math
 import re
 import tomllib
 from fractions import Fraction
+from functools import cache
 from pathlib import Path
 from typing import Any
 
@@ -340,8 +341,14 @@ def _read_fixtures(r: _Reader, data: dict, rooms: dict[str, Room]) -> list[Fixtu
     return out
 
 
+@cache
+def _catalog_ids() -> frozenset[str]:
+    """Ids of the bundled furniture types (the data file does not change while we run)."""
+    return frozenset(load_catalog())
+
+
 def _read_furniture(r: _Reader, data: dict, rooms: dict[str, Room]) -> list[Piece]:
-    catalog = load_catalog()
+    catalog = _catalog_ids()
     out = []
     for f, raw in _array(r, data, "furniture"):
         t = r.table(raw, f, _PIECE_KEYS, {"id", "type"})
