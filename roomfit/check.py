@@ -92,6 +92,9 @@ WIDTH_STEP = 5.0
 RASTER_CELL = 10.0
 #: Segments per quarter circle in negative buffers.
 _QUAD_SEGS = 8
+#: ... and in the narrow-stretch measure, where a coarse arc would shorten stretches by
+#: several mm (a chord cuts the corner an arc only touches).
+_PINCH_SEGS = 64
 
 
 @dataclass(frozen=True)
@@ -822,13 +825,13 @@ def _pinch_floors(ctx: _Ctx, width: float, pinch: float, length: float
     floors: dict[str, BaseGeometry] = {}
     longest = 0.0
     for rid, free in ctx.free.items():
-        narrow_ok = free.buffer(-p, quad_segs=_QUAD_SEGS)
-        wide = free.buffer(-R, quad_segs=_QUAD_SEGS)
-        swept = wide.buffer(R, quad_segs=_QUAD_SEGS)
-        grown = wide.buffer(R - p, quad_segs=_QUAD_SEGS)
+        narrow_ok = free.buffer(-p, quad_segs=_PINCH_SEGS)
+        wide = free.buffer(-R, quad_segs=_PINCH_SEGS)
+        swept = wide.buffer(R, quad_segs=_PINCH_SEGS)
+        grown = wide.buffer(R - p, quad_segs=_PINCH_SEGS)
         drop: list[BaseGeometry] = []
         for n in _polys(narrow_ok.difference(grown)):
-            unswept = n.buffer(p, quad_segs=_QUAD_SEGS).intersection(free).difference(swept)
+            unswept = n.buffer(p, quad_segs=_PINCH_SEGS).intersection(free).difference(swept)
             if unswept.is_empty or unswept.area <= TOUCH_MM2:
                 continue
             rect = unswept.minimum_rotated_rectangle
