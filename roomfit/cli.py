@@ -181,6 +181,70 @@ def _cmd_check(args: argparse.Namespace) -> int:
     return EXIT_OK if result.passed else EXIT_FAIL
 
 
+def _cmd_solve(args: argparse.Namespace) -> int:
+    from dataclasses import replace
+    from pathlib import Path
+
+    from roomfit.check import audit
+    from roomfit.files import atomic_write, refuse_input_overwrite
+    from roomfit.plan import RuleChoice
+    from roomfit.planfile import write_plan
+    from roomfit.solver import SolveOptions, solve
+
+    plan, rules = _plan_and_rules(args)
+    if args.candidates < 1 or args.time_limit <= 0 or args.grid < 1:
+        raise RoomfitError(Problem("arguments", "--candidates, --time-limit and --grid must be "
+                                   "positive"))
+    out_dir = Path(args.output or f"{Path(args.plan).stem}-layouts")
+    options = SolveOptions(candidates=args.candidates, time_limit=args.time_limit, seed=args.seed,
+                           grid=args.grid)
+    print(f"searching {args.plan} under {rules.id}: up to {options.candidates} candidates, "
+          f"{options.time_limit:g} s", file=sys.stderr)
+    result = solve(plan, rules, options, progress=lambda line: print(line, file=sys.stderr))
+    st = result.stats
+    print(f"{args.plan}: {result.status} ({st.elapsed:.1f} s, {st.solves} solver runs, "
+          f"{st.audits} audits, {st.cuts} layouts cut by the audit)")
+    if result.status == "impossible":
+        e = result.explanation
+        assert e is not None
+        print(f"No arrangement exists. {e.summary}")
+        for fix in e.fixes:
+            print(f"  fix: {fix}")
+        print(CAUTION)
+        return EXIT_FAIL
+    if result.status == "timeout":
+        print(f"Nothing that passes every rule was found within {options.time_limit:g} s. This "
+              "is NOT proven impossible: try a longer --time-limit or fewer pieces.")
+        print(CAUTION)
+        return EXIT_TIMEOUT
+    stem = Path(args.plan).stem
+    chosen = replace(plan, rules=RuleChoice(rules.id, plan.rules.overrides))
+    print(f"{'candidate':>9}  {'objective':>9}  {'optimal / gap':>13}  checker  files")
+    for c in result.candidates:
+        furnished = chosen.with_layout(c.layout)
+        toml_path = out_dir / f"{stem}-{c.rank + 1}.toml"
+        refuse_input_overwrite(toml_path, args.plan)
+        write_plan(furnished, toml_path)
+        files = [str(toml_path)]
+        try:
+            from roomfit.draw import draw_svg
+        except ImportError:  # drawing not available: the plan files are still written
+            draw_svg = None
+        if draw_svg is not None:
+            svg_path = out_dir / f"{stem}-{c.rank + 1}.svg"
+            refuse_input_overwrite(svg_path, args.plan)
+            atomic_write(svg_path, draw_svg(furnished, rules, title=f"{plan.name}: candidate "
+                                                                    f"{c.rank + 1}"))
+            files.append(str(svg_path))
+        verdict = audit(furnished, rules)
+        ok = sum(f.ok for f in verdict.findings)
+        gap = "optimal" if c.optimal else f"gap {c.gap:.0%}"
+        check = f"pass {ok}/{len(verdict.findings)}" if verdict.passed else "FAIL"
+        print(f"{c.rank + 1:>9}  {c.objective:>9g}  {gap:>13}  {check:<7}  {', '.join(files)}")
+    print(CAUTION)
+    return EXIT_OK
+
+
 def build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="roomfit",
@@ -220,6 +284,19 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--json", action="store_true", help="print the findings as JSON")
     p.add_argument("--draw", metavar="SVG", help="also write the plan with the failures marked")
     p.set_defaults(func=_cmd_check)
+    p = sub.add_parser("solve", help="find furniture arrangements that pass every rule, or say "
+                                     "why none exists (exit 1 impossible, 3 time limit)")
+    p.add_argument("plan", help="plan file (.toml) with the furniture wanted")
+    p.add_argument("--candidates", type=int, default=3, help="arrangements to find (default 3)")
+    p.add_argument("--time-limit", type=float, default=20.0, metavar="S",
+                   help="seconds for the whole search (default 20)")
+    p.add_argument("--rules", metavar="SET", help="rule set to satisfy (default: the plan's)")
+    p.add_argument("--seed", type=int, default=0, help="random seed; same seed, same result")
+    p.add_argument("--grid", type=int, default=50, metavar="MM",
+                   help="grid (mm) for angled walls, door swings and the turning space (default 50)")
+    p.add_argument("-o", "--output", metavar="DIR",
+                   help="folder for the plan files and drawings (default ./<plan>-layouts/)")
+    p.set_defaults(func=_cmd_solve)
     return parser
 
 

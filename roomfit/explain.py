@@ -160,8 +160,8 @@ def explain(plan: Plan, rules: RuleSet, specs: list[PieceSpec], rooms: list[str]
     fixes += _smaller(plan, rules, specs, rooms, options, pieces, deadline)
     clash = "; ".join(_describe(plan, by_id, rules, g) for g in core)
     summary = (f"The furniture cannot be arranged in the {room_names}: these cannot all be met "
-               f"together: {clash}. (Searched with positions on a {options.grid} mm grid or flush "
-               f"against a wall.)")
+               f"together: {clash}. (Searched over positions in whole millimetres; angled walls and "
+               f"door swings are covered on a {options.grid} mm grid.)")
     return Explanation(summary, pieces, rule_ids, tuple(fixes))
 
 
