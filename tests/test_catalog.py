@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import json
 import math
+from pathlib import Path
 
 import pytest
 from reference_rows import STATUS, cited_rows, oracle
@@ -254,3 +255,12 @@ def test_cli_errors(capsys: pytest.CaptureFixture[str]) -> None:
     assert "--category: no type has category 'hammock'" in capsys.readouterr().err
     assert main(["catalog", "--rules", "nope"]) == 2
     assert "unknown rule set 'nope'" in capsys.readouterr().err
+
+
+def test_docs_list_every_type_with_its_size() -> None:
+    doc = (Path(__file__).resolve().parents[1] / "docs" / "catalog.md").read_text()
+    for t in CAT.values():
+        row = next(line for line in doc.splitlines() if line.startswith(f"| `{t.id}` |"))
+        assert f"| {t.width} x {t.depth} x {t.height} |" in row, t.id
+    for kind in zone_kinds(CAT):
+        assert f"`{kind}`" in doc

@@ -315,3 +315,19 @@ def test_cli_plan_overrides_marked(tmp_path: Path, capsys: pytest.CaptureFixture
     out = capsys.readouterr().out
     assert "route.width *" in out and "overridden by the plan (1)" in out
     assert main(["rules", "--plan", str(tmp_path / "missing.toml")]) == 2
+
+
+def test_docs_describe_every_rule_and_match_the_values() -> None:
+    doc = (Path(__file__).resolve().parents[1] / "docs" / "rules.md").read_text()
+    header = next(line for line in doc.splitlines() if line.startswith("| rule |"))
+    order = [c.strip() for c in header.strip("|").split("|")][1:]
+    assert set(order) == set(SETS)
+    for rid in (r.id for r in _ada().rules):
+        assert f"- `{rid}`" in doc or f"`{rid}`:" in doc or f"- `{rid}`," in doc, rid
+        row = next(line for line in doc.splitlines() if line.startswith(f"| `{rid}` |"))
+        cells = [c.strip() for c in row.strip("|").split("|")][1:]
+        for name, cell in zip(order, cells, strict=True):
+            r = load_ruleset(name).get(rid)
+            shown = str(r.value) if r.unit == "text" else (
+                f"{r.value} in ({r.mm})" if r.unit == "in" else str(r.mm))
+            assert cell.split(" M")[0].split(" CP")[0] == shown, (name, rid, cell)
