@@ -1,0 +1,171 @@
+"""SVG drawings: well-formed, to scale, one element per thing drawn; the draw command."""
+
+from __future__ import annotations
+
+import re
+import xml.etree.ElementTree as ET
+from dataclasses import replace
+from pathlib import Path
+
+import pytest
+from shapely import Polygon
+
+from roomfit.catalog import resolve_pieces
+from roomfit.cli import main
+from roomfit.draw import SCALE_BAR_MM, STYLE, Mark, draw_svg
+from roomfit.draw import Path as Route
+from roomfit.geometry import footprint_box
+from roomfit.plan import Plan
+from roomfit.planfile import read_plan
+from roomfit.rules import rules_for
+
+NS = {"s": "http://www.w3.org/2000/svg"}
+
+
+def _svg(plan: Plan, **kw: object) -> ET.Element:
+    return ET.fromstring(draw_svg(plan, rules_for(plan), **kw))  # type: ignore[arg-type]
+
+
+def _classed(root: ET.Element, tag: str, cls: str) -> list[ET.Element]:
+    return [e for e in root.iter(f"{{{NS['s']}}}{tag}") if cls in e.get("class", "").split()]
+
+
+def _viewbox(root: ET.Element) -> tuple[float, float, float, float]:
+    x, y, w, h = (float(v) for v in root.get("viewBox", "").split())
+    return x, y, w, h
+
+
+def test_sample_drawing_parses_and_is_to_scale(sample_path: Path) -> None:
+    plan = read_plan(sample_path)
+    text = draw_svg(plan, rules_for(plan))
+    assert not text.startswith("<?xml")  # embeddable as it is
+    root = ET.fromstring(text)
+    assert root.tag == "{http://www.w3.org/2000/svg}svg"
+    _, _, vw, vh = _viewbox(root)
+    width, height = float(root.get("width", 0)), float(root.get("height", 0))
+    assert width == 900
+    assert height == pytest.approx(vh * width / vw, abs=1)  # no stretching
+    # the scale bar is 1000 user units long, and user units are millimetres
+    (bar,) = _classed(root, "line", "scale-bar-line")
+    assert float(bar.get("x2", 0)) - float(bar.get("x1", 0)) == SCALE_BAR_MM == 1000
+    assert "1 unit = 1 mm" in text
+
+
+def test_one_element_per_piece_door_window_and_fitting(sample_path: Path) -> None:
+    plan = read_plan(sample_path)
+    root = _svg(plan)
+    placed = [p for p in plan.furniture if p.placement is not None]
+    assert len(_classed(root, "g", "piece")) == len(placed)
+    assert len(_classed(root, "g", "door")) == len(plan.doors)
+    assert len(_classed(root, "g", "window")) == len(plan.windows)
+    assert len(_classed(root, "g", "fitting")) == len(plan.fixtures)
+    assert len(_classed(root, "polygon", "room")) == len(plan.rooms)
+    ids = [e.get("id") for e in root.iter() if e.get("id")]
+    assert len(ids) == len(set(ids))
+
+
+def test_furniture_drawn_at_true_size_with_y_up(sample_path: Path) -> None:
+    plan = read_plan(sample_path)
+    root = _svg(plan)
+    specs = {s.id: s for s in resolve_pieces(plan, rules_for(plan))}
+    rects = {}
+    for g in _classed(root, "g", "piece"):
+        r = g.find("s:rect", NS)
+        assert r is not None
+        rects[g.get("id", "")[len("piece-"):]] = r
+    tops = {}
+    for p in plan.furniture:
+        x0, y0, x1, y1 = footprint_box(specs[p.id], p.placement)  # type: ignore[arg-type]
+        r = rects[p.id]
+        assert float(r.get("width", 0)) == pytest.approx(x1 - x0, abs=0.05)
+        assert float(r.get("height", 0)) == pytest.approx(y1 - y0, abs=0.05)
+        tops[p.id] = (y1, float(r.get("y", 0)))
+    # a piece further north (larger plan y) is higher up on the sheet (smaller SVG y)
+    by_plan = sorted(tops, key=lambda k: tops[k][0])
+    svg_ys = [tops[k][1] for k in by_plan]
+    assert svg_ys == sorted(svg_ys, reverse=True)
+
+
+def test_room_labels_give_shapely_areas() -> None:
+    plan = read_plan(Path(__file__).parent.parent / "plans" / "one-bed.toml")
+    text = draw_svg(plan, rules_for(plan))
+    for r in plan.rooms:
+        assert f"{Polygon(r.outline).area / 1e6:.2f} m²" in text
+    assert "27.04 m²" in text  # the L-shaped living room, 2.6 x 2.8 + 5.2 x 3.8 m by hand
+
+
+def test_hinged_doors_have_leaf_and_dashed_swing_sliding_doors_a_leaf() -> None:
+    plan = read_plan(Path(__file__).parent.parent / "plans" / "one-bed.toml")
+    root = _svg(plan)
+    for g in _classed(root, "g", "door"):
+        door = plan.doors[[d.id for d in plan.doors].index(g.get("id", "")[len("door-"):])]
+        leaves = [e for e in g if "leaf" in e.get("class", "")]
+        swings = [e for e in g if "swing" in e.get("class", "")]
+        assert len(leaves) == 1
+        assert len(swings) == (1 if door.leaf.value == "hinged" else 0)
+        for s in swings:
+            assert s.get("stroke-dasharray")
+
+
+def test_marks_paths_and_unplaced_pieces() -> None:
+    plan = read_plan(Path(__file__).parent.parent / "plans" / "studio.toml")
+    bare = replace(plan, furniture=(plan.furniture[0], replace(plan.furniture[1], placement=None)))
+    marks = [Mark("fail", "Bed side zone blocked", (1000, 4000), ((0, 4000), (500, 4000),
+                                                                  (500, 4500), (0, 4500))),
+             Mark("note", "Narrow passage", (3000, 3000), ()),
+             Mark("fail", "No turning space anywhere", None, ())]
+    routes = [Route("Bed to WC", ((1000, 4500), (2900, 2000), (600, 1000)), night=True),
+              Route("Meals", ((4500, 4000), (3500, 5000)))]
+    root = _svg(bare, marks=marks, paths=routes, title="As found")
+    text = ET.tostring(root, encoding="unicode")
+    drawn = _classed(root, "g", "mark")
+    assert len(drawn) == 3
+    assert len(_classed(root, "g", "mark-fail")) == 2
+    fail_outline = drawn[0].find("s:polygon", NS)
+    assert fail_outline is not None and fail_outline.get("stroke") == STYLE["fail"]
+    for label in ("Bed side zone blocked", "Narrow passage", "No turning space anywhere"):
+        assert label in text
+    night, day = _classed(root, "g", "path")
+    assert night.find("s:polyline", NS).get("stroke-dasharray")  # type: ignore[union-attr]
+    assert day.find("s:polyline", NS).get("stroke-dasharray") is None  # type: ignore[union-attr]
+    assert re.search(r"Not placed: .*" + re.escape(plan.furniture[1].id), text)
+    assert len(_classed(root, "g", "piece")) == 1
+    assert "As found" in text
+
+
+def test_cli_draw_writes_each_sample(sample_path: Path, tmp_path: Path,
+                                     capsys: pytest.CaptureFixture[str]) -> None:
+    out = tmp_path / "plan.svg"
+    assert main(["draw", str(sample_path), "-o", str(out)]) == 0
+    ET.parse(out)
+    assert "Caution" in capsys.readouterr().out
+
+
+def test_cli_draw_with_another_rule_set(tmp_path: Path) -> None:
+    sample = Path(__file__).parent.parent / "plans" / "studio.toml"
+    out = tmp_path / "plan.svg"
+    assert main(["draw", str(sample), "-o", str(out), "--rules", "ada-2010"]) == 0
+    assert "Rule set: ada-2010" in out.read_text(encoding="utf-8")
+
+
+def test_cli_draw_bad_plan_exits_2_naming_the_field(tmp_path: Path,
+                                                    capsys: pytest.CaptureFixture[str]) -> None:
+    sample = Path(__file__).parent.parent / "plans" / "studio.toml"
+    broken = tmp_path / "broken.toml"
+    broken.write_text(sample.read_text(encoding="utf-8").replace("width = 900", "width = -900", 1),
+                      encoding="utf-8")
+    out = tmp_path / "plan.svg"
+    assert main(["draw", str(broken), "-o", str(out)]) == 2
+    err = capsys.readouterr().err
+    assert "doors[0].width" in err and "Traceback" not in err
+    assert not out.exists()
+
+
+def test_cli_draw_refuses_to_overwrite_its_input(tmp_path: Path,
+                                                 capsys: pytest.CaptureFixture[str]) -> None:
+    plan = tmp_path / "plan.toml"
+    original = (Path(__file__).parent.parent / "plans" / "studio.toml").read_text(encoding="utf-8")
+    plan.write_text(original, encoding="utf-8")
+    assert main(["draw", str(plan), "-o", str(plan)]) == 2
+    assert "never overwrites its inputs" in capsys.readouterr().err
+    assert plan.read_text(encoding="utf-8") == original
