@@ -186,6 +186,7 @@ class _Target:
     geom: BaseGeometry
     depth: float
     ids: tuple[str, ...]
+    door: str | None = None   # a door side: reached through the door's own mouth point
 
 
 @dataclass
@@ -709,8 +710,8 @@ def _targets(ctx: _Ctx) -> list[_Target]:
         for rid in ds.door.rooms:
             if rid == OUTSIDE or rid not in ctx.rooms:
                 continue
-            out.append(_Target(f"door {ds.door.id} from {rid}", rid, Point(ds.door.at),
-                               ds.door.width / 2, (ds.door.id,)))
+            out.append(_Target(f"the {rid} side of door {ds.door.id}", rid, Point(ds.door.at),
+                               ds.door.width / 2, (ds.door.id,), ds.door.id))
     for pid, pc in ctx.placed.items():
         room = ctx.rooms.get(pc.placement.room)
         if room is None:
@@ -731,10 +732,13 @@ def _targets(ctx: _Ctx) -> list[_Target]:
 
 
 def _target_reached(ctx: _Ctx, t: _Target, width: float) -> bool:
-    """Is ``t`` reached at ``width``? Door targets use the door's own mouth point."""
-    st = _reach(ctx, width)
-    if t.ids and t.ids[0] in {ds.door.id for ds in ctx.doors} and t.label.startswith("door "):
-        _, idx = st.mouths.get((t.ids[0], t.room), (None, []))
+    """Is ``t`` reached from the entrance at ``width``?"""
+    return _reached_in(_reach(ctx, width), t)
+
+
+def _reached_in(st: _Reach, t: _Target) -> bool:
+    if t.door is not None:
+        _, idx = st.mouths.get((t.door, t.room), (None, []))
         return any(st.root[i] in st.start for i in idx)
     return st.reached(t)
 
@@ -759,9 +763,8 @@ def _bottleneck(ctx: _Ctx, t: _Target, width: float) -> tuple[tuple[float, float
     bottleneck.
     """
     st = _reach(ctx, width)
-    door_ids = {ds.door.id for ds in ctx.doors}
-    if t.label.startswith("door ") and t.ids and t.ids[0] in door_ids:
-        p, idx = st.mouths[(t.ids[0], t.room)]
+    if t.door is not None:
+        p, idx = st.mouths[(t.door, t.room)]
         t_idx = idx
         t_geom = p
     else:
@@ -865,7 +868,7 @@ def _check_routes(ctx: _Ctx, extra: list[_Target]) -> list[Finding]:
             if pinch_state is None:
                 floors, pinch_long = _pinch_floors(ctx, width, pinch, plength)
                 pinch_state = _reach(ctx, pinch, floors, key="pinch")
-            if _target_pinch_reached(ctx, pinch_state, t):
+            if _reached_in(pinch_state, t):
                 ok = True
                 note = (f" only through narrow stretches of at least {_fmt(pinch)}, the longest"
                         f" {_fmt(pinch_long)} (up to {_fmt(plength)} allowed)")
@@ -905,13 +908,6 @@ def _check_routes(ctx: _Ctx, extra: list[_Target]) -> list[Finding]:
         per_room.setdefault(t.room, []).append((best, where, ids, False))
     out += _route_widths(ctx, targets, per_room, width, rw.source)
     return out
-
-
-def _target_pinch_reached(ctx: _Ctx, st: _Reach, t: _Target) -> bool:
-    if t.label.startswith("door ") and t.ids:
-        _, idx = st.mouths.get((t.ids[0], t.room), (None, []))
-        return any(st.root[i] in st.start for i in idx)
-    return st.reached(t)
 
 
 def _route_widths(ctx: _Ctx, targets: list[_Target], per_room: dict, width: float,
