@@ -245,6 +245,58 @@ def _cmd_solve(args: argparse.Namespace) -> int:
     return EXIT_OK
 
 
+def _arrangements(args: argparse.Namespace) -> tuple[list[Plan], list[str], RuleSet | None]:
+    """The plans named on the command line, a label for each, and ``--rules`` if given."""
+    from pathlib import Path
+
+    plans = [read_plan(p) for p in args.plans]
+    stems = [Path(p).stem for p in args.plans]
+    names = stems if len(set(stems)) == len(stems) else list(args.plans)
+    rules = load_ruleset(args.rules) if args.rules else None
+    return plans, names, rules
+
+
+def _write_report(args: argparse.Namespace, path: str, comparison, title: str | None) -> None:  # noqa: ANN001
+    from roomfit.files import atomic_write, refuse_input_overwrite
+    from roomfit.report import build_report
+
+    refuse_input_overwrite(path, *args.plans)
+    atomic_write(path, build_report(comparison, caution=CAUTION, title=title))
+
+
+def _cmd_compare(args: argparse.Namespace) -> int:
+    from roomfit.compare import compare, render_table
+
+    plans, names, rules = _arrangements(args)
+    if args.html:
+        from roomfit.files import refuse_input_overwrite
+
+        refuse_input_overwrite(args.html, *args.plans)
+    comparison = compare(plans, names, rules)
+    print(render_table(comparison))
+    if args.html:
+        _write_report(args, args.html, comparison, args.title)
+        print(f"report with {len(plans)} drawings side by side: {args.html}")
+    print(CAUTION)
+    return EXIT_OK
+
+
+def _cmd_report(args: argparse.Namespace) -> int:
+    from roomfit.compare import compare
+    from roomfit.files import refuse_input_overwrite
+
+    plans, names, rules = _arrangements(args)
+    refuse_input_overwrite(args.output, *args.plans)
+    comparison = compare(plans, names, rules)
+    _write_report(args, args.output, comparison, args.title)
+    failed = sum(r.rules_failed for r in comparison.rows)
+    print(f"{args.output}: client report for {len(plans)} arrangement"
+          f"{'s' if len(plans) > 1 else ''}, {failed} failed checks shown with their sources "
+          "(HTML; no PDF: print it from a browser)")
+    print(CAUTION)
+    return EXIT_OK
+
+
 def build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="roomfit",
@@ -297,6 +349,22 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("-o", "--output", metavar="DIR",
                    help="folder for the plan files and drawings (default ./<plan>-layouts/)")
     p.set_defaults(func=_cmd_solve)
+    p = sub.add_parser("compare", help="compare furnished plans side by side: rules failed, "
+                       "walking per day, narrowest passage, turning spaces, free floor")
+    p.add_argument("plans", nargs="+", metavar="PLAN", help="furnished plan files (.toml)")
+    p.add_argument("--rules", help="judge every plan under this rule set, without the plans' "
+                   "overrides (default: each plan's own set and overrides)")
+    p.add_argument("--html", metavar="FILE", help="also write the client report (HTML) here")
+    p.add_argument("--title", help="title of the HTML report")
+    p.set_defaults(func=_cmd_compare)
+    p = sub.add_parser("report", help="write the client report (HTML) for one or more "
+                       "furnished plans: drawings, routes, metrics, findings with sources")
+    p.add_argument("plans", nargs="+", metavar="PLAN", help="furnished plan files (.toml)")
+    p.add_argument("-o", "--output", required=True, metavar="FILE", help="report file (.html)")
+    p.add_argument("--rules", help="judge every plan under this rule set, without the plans' "
+                   "overrides (default: each plan's own set and overrides)")
+    p.add_argument("--title", help="title of the report")
+    p.set_defaults(func=_cmd_report)
     return parser
 
 
