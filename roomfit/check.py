@@ -656,10 +656,17 @@ def _find(parent: list[int], i: int) -> int:
     return i
 
 
-def _mouth(ds: geo.DoorShape, room: str, r: float) -> Point:
-    """The point half a route width in front of the door's centre, in ``room``."""
+def _mouth(ctx: _Ctx, ds: geo.DoorShape, room: str, r: float) -> Point:
+    """The point half a route width in front of the door's centre, in ``room``.
+
+    The door's centre lies on the wall of ``door.rooms[0]``; on the other side it is taken
+    at the nearest point of that room's outline, so walls drawn with a thickness work too.
+    """
     n = ds.inward[room]
-    return Point(ds.door.at[0] + n[0] * r, ds.door.at[1] + n[1] * r)
+    at = Point(ds.door.at)
+    ring = ctx.rooms[room].exterior
+    base = ring.interpolate(ring.project(at))
+    return Point(base.x + n[0] * r, base.y + n[1] * r)
 
 
 def _reach(ctx: _Ctx, width: float, floors: dict[str, BaseGeometry] | None = None,
@@ -689,7 +696,7 @@ def _reach(ctx: _Ctx, width: float, floors: dict[str, BaseGeometry] | None = Non
         sides = [rid for rid in ds.door.rooms if rid != OUTSIDE and rid in ctx.rooms]
         near: list[int] = []
         for rid in sides:
-            p = _mouth(ds, rid, r)
+            p = _mouth(ctx, ds, rid, r)
             idx = state.near(rid, p, ds.door.width / 2)
             state.mouths[(ds.door.id, rid)] = (p, idx)
             near += idx
@@ -780,7 +787,7 @@ def _bottleneck(ctx: _Ctx, t: _Target, width: float) -> tuple[tuple[float, float
             if ds.door.is_entrance:
                 for rid in ds.door.rooms:
                     if rid in ctx.rooms:
-                        start_by.setdefault(rid, []).append(_mouth(ds, rid, width / 2))
+                        start_by.setdefault(rid, []).append(_mouth(ctx, ds, rid, width / 2))
     targ_by: dict[str, list[BaseGeometry]] = {}
     for i, (rid, p) in enumerate(st.comps):
         if st.root[i] in t_roots and st.root[i] not in st.start:
@@ -798,9 +805,9 @@ def _bottleneck(ctx: _Ctx, t: _Target, width: float) -> tuple[tuple[float, float
             _, near_a = st.mouths.get((ds.door.id, ra), (None, []))
             _, near_b = st.mouths.get((ds.door.id, rb), (None, []))
             if any(st.root[i] in st.start for i in near_a):  # blocked on the target's side
-                pairs.append((_mouth(ds, rb, width / 2), unary_union(targ_by[rb])))
+                pairs.append((_mouth(ctx, ds, rb, width / 2), unary_union(targ_by[rb])))
             elif any(st.root[i] in t_roots for i in near_b):  # blocked on the entrance's side
-                pairs.append((unary_union(start_by[ra]), _mouth(ds, ra, width / 2)))
+                pairs.append((unary_union(start_by[ra]), _mouth(ctx, ds, ra, width / 2)))
     if not pairs:
         pairs.append((unary_union([g for v in start_by.values() for g in v]),
                       unary_union([g for v in targ_by.values() for g in v])))
@@ -993,6 +1000,10 @@ def audit_record(result: Audit) -> dict[str, object]:
     }
 
 
+#: Rules whose passing findings the summary lists too (they carry the key measures).
+_ALWAYS_SHOWN = ("route.width", "turning.space")
+
+
 def _amount(f: Finding, value: float, inches: bool) -> str:
     if f.rule in AREA_RULES:
         return f"{value / 1e4:.0f} cm2" if value >= 1e4 else f"{value:.0f} mm2"
@@ -1014,6 +1025,8 @@ def summary_text(result: Audit, rules: RuleSet) -> str:
         bad = [f for f in mine if not f.ok]
         head = "FAIL" if bad else "pass"
         lines.append(f"{head}  {rule:<17} {len(mine) - len(bad)} of {len(mine)} pass")
+        if rule in _ALWAYS_SHOWN:  # the narrowest passages and turning spaces, even when fine
+            lines += [f"      ok: {f.message}" for f in mine if f.ok]
         for f in bad:
             lines.append(f"      - {f.message}")
             facts = []

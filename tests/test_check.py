@@ -228,6 +228,21 @@ def test_door_blocked_by_piece_cuts_off_the_room() -> None:
     assert "chest" in _cupboard(result).pieces
 
 
+def test_door_through_thick_wall() -> None:
+    # two rooms 100 mm apart (a wall drawn with its thickness), joined by a 900 mm doorway on
+    # the south room's wall: the north room's cupboard zone is reachable through it
+    rules = load_ruleset("everyday")
+    south = Room("s", "South", "hall", ((0, 0), (4000, 0), (4000, 1500), (0, 1500)))
+    north = Room("r", "Room", "living", ((0, 1600), (4000, 1600), (4000, 5000), (0, 5000)))
+    base = _room_plan()
+    doors = (Door("entry", ("s", OUTSIDE), (2000, 0), 1000, Leaf.NONE),
+             Door("inner", ("s", "r"), (2000, 1500), 900, Leaf.NONE))
+    plan = Plan("thick", (south, north), doors, (), base.fixtures, (), RuleChoice("everyday"))
+    result = audit(plan, rules)
+    assert _cupboard(result).ok
+    assert _one(result, "route.reach", "r side of door inner").ok
+
+
 # --------------------------------------------------------------------------- simple rules
 
 
