@@ -14,6 +14,7 @@ more floor in front of a wardrobe than a walking one. Every size names its sourc
 
 from __future__ import annotations
 
+import functools
 import tomllib
 from dataclasses import dataclass
 from importlib import resources
@@ -114,7 +115,12 @@ class PieceSpec:
 
 
 def load_catalog() -> dict[str, FurnitureType]:
-    """The bundled catalogue, by type id."""
+    """The bundled catalogue, by type id (a fresh dict each call; the file is read once)."""
+    return {t.id: t for t in _bundled_catalog()}
+
+
+@functools.cache
+def _bundled_catalog() -> tuple[FurnitureType, ...]:
     path = resources.files("roomfit") / "data" / "catalog.toml"
     data = tomllib.loads(path.read_text(encoding="utf-8"))
     out: dict[str, FurnitureType] = {}
@@ -136,7 +142,7 @@ def load_catalog() -> dict[str, FurnitureType]:
             view_max=float(raw.get("view_max", 0.0)),
             screen=int(raw.get("screen", 0)),
         )
-    return out
+    return tuple(out.values())
 
 
 def type_record(t: FurnitureType, rules: RuleSet | None = None) -> dict[str, object]:

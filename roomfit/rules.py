@@ -29,6 +29,7 @@ Rule ids every set defines (see ``docs/rules.md`` for their meaning):
 
 from __future__ import annotations
 
+import functools
 import tomllib
 from collections.abc import Iterable
 from dataclasses import dataclass, replace
@@ -181,6 +182,7 @@ def _parse_rule(rule_id: str, raw: object, where: str) -> Rule:
                 raw["status"])
 
 
+@functools.cache
 def _catalog_zone_kinds() -> tuple[str, ...]:
     """Zone kinds the bundled catalogue uses (read from its data file: the catalogue module
     imports this one, not the other way round)."""
@@ -243,6 +245,15 @@ def load_ruleset(name: str, overrides: dict[str, int | str] | None = None) -> Ru
     if name not in known:
         raise RuleError(Problem("rules.set", f"unknown rule set {name!r}",
                                 f"use one of {', '.join(known)}"))
+    rs = _bundled(name)
+    if overrides:
+        rs = _apply_overrides(rs, overrides)
+    return rs
+
+
+@functools.cache
+def _bundled(name: str) -> RuleSet:
+    """A bundled set, read and checked once (rule sets are frozen, so sharing is safe)."""
     path = resources.files("roomfit") / "data" / "rules" / f"{name}.toml"
     try:
         data = tomllib.loads(path.read_text(encoding="utf-8"))
@@ -259,8 +270,6 @@ def load_ruleset(name: str, overrides: dict[str, int | str] | None = None) -> Ru
     problems = ruleset_problems(rs, _catalog_zone_kinds())
     if problems:
         raise RuleError(problems)
-    if overrides:
-        rs = _apply_overrides(rs, overrides)
     return rs
 
 
