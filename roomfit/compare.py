@@ -5,7 +5,8 @@ Metrics (see ``docs/routes.md``):
 - rules failed: failing findings of :func:`roomfit.check.audit` (fewer is better);
 - walking per day: :attr:`RouteScores.walking_m_per_day`; an arrangement that leaves a
   routine trip unreachable ranks behind every one that does not, whatever its metres;
-- narrowest passage on any routine route (mm, wider is better);
+- narrowest passage on any routine route (mm, wider is better; an unreachable trip counts
+  as narrower than any width);
 - turning spaces: rooms that have one out of the rooms the rule set asks one for;
 - free floor: the share of the rooms' floor not under fittings or furniture;
 - preferences met: pieces of wall-loving categories standing with their back to a wall, and
@@ -97,8 +98,10 @@ class Row:
             return (self.rules_failed,)
         if metric == "walking":
             return (self.unreachable, round(self.walking_m_per_day, 3))
-        if metric == "narrowest":
-            return None if self.narrowest_mm is None else (round(self.narrowest_mm),)
+        if metric == "narrowest":  # an unreachable trip is narrower than any width
+            if not self.routes.trips:
+                return None
+            return (-self.unreachable, round(self.narrowest_mm or 0))
         if metric == "turning":
             return None if not self.turning_need else (self.turning_have / self.turning_need,)
         if metric == "free_floor":
@@ -118,7 +121,8 @@ class Row:
                 out += f" ({self.unreachable} trip{'s' if self.unreachable > 1 else ''} unreachable)"
             return out
         if metric == "narrowest":
-            return "-" if self.narrowest_mm is None else f"{self.narrowest_mm:.0f} mm"
+            out = "-" if self.narrowest_mm is None else f"{self.narrowest_mm:.0f} mm"
+            return out + (" (a trip is unreachable)" if self.unreachable else "")
         if metric == "turning":
             return "not asked" if not self.turning_need else f"{self.turning_have} / {self.turning_need}"
         if metric == "free_floor":
