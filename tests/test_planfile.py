@@ -406,3 +406,11 @@ def test_lengths_in_the_file_use_the_same_rules_as_units() -> None:
     data["doors"][0]["width"] = "2 ft 11.5 in"
     plan = loads_plan(tomli_w.dumps(data))
     assert plan.doors[0].width == parse_length("35.5 in") == 902  # 35.5 * 25.4 = 901.7
+
+
+def test_example_in_the_format_document_is_valid() -> None:
+    doc = (Path(__file__).parent.parent / "docs" / "plan-format.md").read_text(encoding="utf-8")
+    example = doc.split("```toml\n")[-1].split("```")[0]
+    plan = loads_plan(example, "docs/plan-format.md")
+    assert plan.rules.override_map() == {"route.width": 813}  # 32 in = 812.8 mm
+    assert plan.piece("chest").width == 914  # 36 in = 914.4 mm
