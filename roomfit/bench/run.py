@@ -610,6 +610,7 @@ def markdown(results: dict[str, Any]) -> str:
 def run(config: BenchConfig, out: Path, say: Callable[[str], None]) -> dict[str, Any]:
     """Run the suite, write the JSON (and the scaling SVG next to it), return the results."""
     started = time.time()
+    host = machine()
     insts = suite(config)
     rows = []
     for k, inst in enumerate(insts, 1):
@@ -620,7 +621,7 @@ def run(config: BenchConfig, out: Path, say: Callable[[str], None]) -> dict[str,
         "format": "roomfit-bench/1",
         "started_utc": time.strftime("%Y-%m-%dT%H:%M:%SZ", time.gmtime(started)),
         "wall_s": round(time.time() - started, 1),
-        "machine": machine(),
+        "machine": host,
         "config": {"quick": config.quick, "seed": config.seed, "time_budget_s": config.time_budget,
                    "only": config.only, "candidates": config.candidates},
         "targets": TARGETS,
