@@ -93,11 +93,12 @@ class Row:
     preferences_total: int
 
     def value(self, metric: str) -> tuple[float, ...] | None:
-        """The metric as a sortable key (None when it does not apply)."""
+        """The metric as a sortable key at the precision shown (None when it does not apply):
+        values that print the same tie."""
         if metric == "rules_failed":
             return (self.rules_failed,)
         if metric == "walking":
-            return (self.unreachable, round(self.walking_m_per_day, 3))
+            return (self.unreachable, round(self.walking_m_per_day, 1))
         if metric == "narrowest":  # an unreachable trip is narrower than any width
             if not self.routes.trips:
                 return None
@@ -105,7 +106,7 @@ class Row:
         if metric == "turning":
             return None if not self.turning_need else (self.turning_have / self.turning_need,)
         if metric == "free_floor":
-            return (round(self.free_floor_share, 4),)
+            return (round(100 * self.free_floor_share),)
         if metric == "preferences":
             return None if not self.preferences_total else (
                 self.preferences_met / self.preferences_total,)

@@ -50,8 +50,14 @@ def test_rows_and_best_values():
     assert b.narrowest_mm == pytest.approx(1200, abs=10)
     assert cmp.is_best("narrowest", 1) and not cmp.is_best("narrowest", 0)
     assert cmp.is_best("free_floor", 1) and not cmp.is_best("free_floor", 0)
-    shorter = 0 if a.walking_m_per_day < b.walking_m_per_day else 1
-    assert cmp.is_best("walking", shorter) and not cmp.is_best("walking", 1 - shorter)
+    # walking is compared at the 0.1 m shown: the best rows are those at the least value
+    shown = [round(r.walking_m_per_day, 1) for r in cmp.rows]
+    if shown[0] != shown[1]:
+        assert [cmp.is_best("walking", i) for i in (0, 1)] == [s == min(shown) for s in shown]
+    far = compare([near, _arrangement(900, 100)], ["near", "far"], EVERYDAY)
+    metres = [r.walking_m_per_day for r in far.rows]
+    assert metres[0] < metres[1] - 1  # the gap at the far west wall makes a detour
+    assert far.is_best("walking", 0) and not far.is_best("walking", 1)
 
 
 def test_unreachable_trip_ranks_behind_any_metres():
