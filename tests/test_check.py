@@ -11,6 +11,7 @@ import json
 import math
 from pathlib import Path
 
+import numpy as np
 import pytest
 import shapely
 from shapely import Polygon, box
@@ -228,6 +229,45 @@ def test_door_blocked_by_piece_cuts_off_the_room() -> None:
     assert "chest" in _cupboard(result).pieces
 
 
+def _grid_reach(gap: int, length: int, left: int, width: float, cell: float = 5.0) -> bool:
+    """Independent reference with scipy: the free floor on a 5 mm raster, its Euclidean
+    distance transform, cells at least half the route width from any obstacle, and their
+    4-connected components; is the cupboard zone in the entrance's component?"""
+    from scipy import ndimage
+
+    nx, ny = int(ROOM_W / cell), int(ROOM_D / cell)
+    xs = (np.arange(nx) + 0.5) * cell
+    ys = (np.arange(ny) + 0.5) * cell
+    gx, gy = np.meshgrid(xs, ys)
+    wall = (gy >= WALL_Y) & (gy <= WALL_Y + length) & ((gx <= left) | (gx >= left + gap))
+    cupboard = (gx >= 1500) & (gx <= 2500) & (gy >= ROOM_D - 300)
+    free = np.pad(~(wall | cupboard), 1, constant_values=False)  # the room's walls
+    dist = ndimage.distance_transform_edt(free)[1:-1, 1:-1] * cell
+    ok = dist >= width / 2
+    labels, _ = ndimage.label(ok)
+    start = labels[int((width / 2 + 20) / cell), int(2000 / cell)]
+    zone = (gx >= 1500) & (gx <= 2500) & (gy >= ROOM_D - 1300) & (gy <= ROOM_D - 300)
+    return bool(start) and bool((labels[zone] == start).any())
+
+
+def test_reach_agrees_with_scipy_grid_reference() -> None:
+    # random gaps (away from the route width by more than the raster's error) give the same
+    # verdict as an independent raster computation with scipy.ndimage
+    rng = np.random.default_rng(7)
+    rules = load_ruleset("everyday")
+    width = rules.get("route.width").exact_mm
+    done = 0
+    while done < 12:
+        gap = int(rng.integers(400, 1200))
+        if abs(gap - width) < 20:
+            continue
+        length, left = int(rng.integers(50, 1500)), int(rng.integers(300, 3900 - gap))
+        ours = _cupboard(audit(_room_plan(_gap(gap, length, left)), rules)).ok
+        assert ours == _grid_reach(gap, length, left, width), (gap, length, left)
+        assert ours == (gap > width)  # and by hand: the gap decides
+        done += 1
+
+
 def test_door_through_thick_wall() -> None:
     # two rooms 100 mm apart (a wall drawn with its thickness), joined by a 900 mm doorway on
     # the south room's wall: the north room's cupboard zone is reachable through it
@@ -357,6 +397,32 @@ def test_check_every_sample(path: Path, tmp_path: Path, capsys: pytest.CaptureFi
     assert (code == 0) == audit(plan, load_ruleset(plan.rules.set, plan.rules.override_map())).passed
     assert summary_text(result, load_ruleset("ada-2010")).count("\n") > 5
     assert len(marks_for(result)) == len(result.failures)
+
+
+def test_random_layouts_give_consistent_findings() -> None:
+    # pieces thrown anywhere (even through walls) in the samples: the audit never raises, and
+    # every route failure names a bottleneck with a widest route below the one required
+    from dataclasses import replace
+
+    from roomfit.check import RULE_IDS
+
+    rng = np.random.default_rng(3)
+    plans = [read_plan(p) for p in SAMPLES]
+    for _ in range(8):
+        plan = plans[int(rng.integers(len(plans)))]
+        rules = load_ruleset(ruleset_ids()[int(rng.integers(len(ruleset_ids())))])
+        xs = [x for r in plan.rooms for x, _ in r.outline]
+        ys = [y for r in plan.rooms for _, y in r.outline]
+        pieces = tuple(
+            replace(p, placement=Placement(int(rng.integers(min(xs) - 200, max(xs))),
+                                           int(rng.integers(min(ys) - 200, max(ys))),
+                                           int(rng.choice([0, 90, 180, 270])), p.rooms[0]))
+            for p in plan.furniture)
+        result = audit(replace(plan, furniture=pieces), rules)
+        assert {f.rule for f in result.findings} <= set(RULE_IDS)
+        for f in result.failures:
+            if f.rule == "route.reach" and f.measured is not None:
+                assert f.where is not None and f.measured < f.required
 
 
 def test_cli_json_and_exit_codes(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
