@@ -9,6 +9,8 @@ import networkx as nx
 import numpy as np
 import pytest
 import shapely
+from hypothesis import HealthCheck, given, settings
+from hypothesis import strategies as st
 from shapely import box
 
 from roomfit.plan import Door, Fixture, Leaf, Piece, Placement, Plan, Room, Trip
@@ -278,3 +280,37 @@ def test_studio_as_is_reports_each_trip_reachable_or_why():
     assert [t.label for t in s.trips] == [t.label for t in plan.routines]
     for t in s.trips:
         assert t.reachable or ("762 mm" in t.reason and len(t.reason) > 30)
+
+
+# --- properties on random layouts ----------------------------------------------------------
+
+_xy = st.tuples(st.integers(100, 5900), st.integers(100, 3900))
+_piece = st.tuples(st.integers(0, 5500), st.integers(0, 3500), st.integers(200, 1500),
+                   st.integers(200, 1500))
+
+
+@settings(max_examples=40, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(st.lists(_piece, max_size=6), _xy, _xy)
+def test_random_layouts_never_crash_and_respect_distance_bounds(pieces, a, b):
+    blocks = [_block(f"p{k}", x, y, min(w, 6000 - x), min(d, 4000 - y))
+              for k, (x, y, w, d) in enumerate(pieces)]
+    plan = _plan([_room("r", 0, 0, 6000, 4000)], blocks)
+    there = route(plan, EVERYDAY, a, b)
+    back = route(plan, EVERYDAY, b, a)
+    assert there.reachable == back.reachable
+    if there.reachable:
+        # no route is shorter than the straight line; the shortest is the same both ways
+        assert there.length_mm >= math.dist(a, b) - 1e-6
+        assert there.length_mm == pytest.approx(back.length_mm, abs=1e-6)
+        assert there.points[0] == pytest.approx(a) and there.points[-1] == pytest.approx(b)
+        assert there.narrowest_mm > 0
+    else:
+        assert there.reason and there.length_mm is None
+
+
+def test_paths_for_drawing_keep_labels_and_night():
+    s = score_routes(_flat(), EVERYDAY)
+    paths = s.paths()
+    assert [p.label for p in paths] == ["In to WC", "Sit"]
+    assert [p.night for p in paths] == [True, False]
+    assert paths[0].points == s.trips[0].points
