@@ -270,7 +270,9 @@ def _run_solver(inst: Instance, rules: RuleSet, config: BenchConfig, say: Callab
         "status": res.status,
         "time_limit_s": limit,
         "elapsed_s": round(elapsed, 4),
-        "time_first_valid_s": None if st.time_to_first is None else round(st.time_to_first, 4),
+        # a group of rooms solved while another timed out is no valid arrangement of the flat
+        "time_first_valid_s": (round(st.time_to_first, 4)
+                               if st.time_to_first is not None and res.candidates else None),
         "time_all_s": round(elapsed, 4) if res.candidates else None,
         "candidates": len(res.candidates),
         "peak_mb": _peak_mb(),
@@ -479,7 +481,8 @@ def scaling_svg(points: list[dict[str, Any]], title: str = "Time against number 
     lo = 10 ** math.floor(math.log10(max(min(ts, default=0.01), 1e-3)))
     hi = 10 ** math.ceil(math.log10(max(max(ts, default=1.0), lo * 10)))
     xmax = max((p["pieces"] for p in points), default=10)
-    xs = max(xmax, 10)
+    step = 10 if xmax > 20 else 2
+    xs = (xmax // step + 1) * step  # room to the right of the last point
 
     def px(n: float) -> float:
         return left + pw * n / xs
@@ -497,7 +500,6 @@ def scaling_svg(points: list[dict[str, Any]], title: str = "Time against number 
         el.append(f'<line x1="{left}" y1="{y:.1f}" x2="{left + pw}" y2="{y:.1f}" stroke="#ddd"/>')
         el.append(f'<text x="{left - 6}" y="{y + 4:.1f}" text-anchor="end">{10 ** e:g} s</text>')
         e += 1
-    step = 10 if xs > 20 else 2
     for n in range(0, xs + 1, step):
         x = px(n)
         el.append(f'<line x1="{x:.1f}" y1="{top + ph}" x2="{x:.1f}" y2="{top + ph + 4}" stroke="#333"/>')
