@@ -890,11 +890,13 @@ def _check_routes(ctx: _Ctx, extra: list[_Target]) -> list[Finding]:
             per_room.setdefault(t.room, []).append((math.inf, None, t.ids, True))
             continue
         if ok:
-            out.append(Finding("route.reach", True, f"{t.label} is reachable{note}",
-                               measured=pinch, required=width, source=rw.source,
-                               pieces=t.ids, room=t.room))
             best, fail = _widest(lambda w, t=t: _target_reached(ctx, t, w), pinch, width)
             where, ids = _bottleneck(ctx, t, fail)
+            out.append(Finding("route.reach", True,
+                               f"{t.label} is reachable{note}; the widest route to it is "
+                               f"{_fmt(best)}, narrowest near ({where[0]:.0f}, {where[1]:.0f})",
+                               measured=round(best, 1), required=width, source=rw.source,
+                               pieces=t.ids, room=t.room, where=where))
             per_room.setdefault(t.room, []).append((best, where, ids, True))
             continue
         if _target_reached(ctx, t, 0.0):

@@ -129,6 +129,20 @@ def test_t_shaped_space_fits_where_circle_does_not() -> None:
     assert not turning_space(worse, side, "circle-or-t").fits
 
 
+def test_t_shaped_space_in_audit_is_reachable() -> None:
+    # the same 60 in room under the ADA 2010 set, entered through a doorway in the south wall:
+    # the turning space passes as a T (§304.3.2) and is reachable at 36 in (§403.5.1)
+    side = round(inches(60))
+    rules = load_ruleset("ada-2010")
+    plan = _room_plan((_custom("box", 0, 0, 300, 600),), size=(side, side), fixtures=False,
+                      rules="ada-2010",
+                      doors=(Door("entry", ("r", OUTSIDE), (side // 2, 0), 915, Leaf.NONE),))
+    result = audit(plan, rules)
+    turning = result.by_rule("turning.space")[0]
+    assert turning.ok and "T-shaped" in turning.message
+    assert _one(result, "route.reach", "turning space").ok
+
+
 def test_square_movement_area() -> None:
     # DIN 18040-2: 1500 x 1500 mm movement area; a free 1500 mm square room holds it exactly
     assert turning_space(box(0, 0, 1500, 1500), 1500, "square").fits
