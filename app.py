@@ -65,13 +65,13 @@ def _set_plan(plan: Plan, origin: str) -> None:
     s["plan"] = plan
     s["origin"] = origin
     s["gen"] = s.get("gen", 0) + 1  # fresh form widgets for a newly opened plan
-    s["solve"] = None
+    s["solved"] = None
     s["edit_error"] = []
 
 
 def _init() -> None:
     s = _state()
-    for key, value in (("plan", None), ("origin", ""), ("solve", None), ("upload_id", None),
+    for key, value in (("plan", None), ("origin", ""), ("solved", None), ("upload_id", None),
                        ("upload_error", []), ("edit_error", []), ("notice", "")):
         s.setdefault(key, value)
     if s["plan"] is None:
@@ -244,7 +244,7 @@ def _clear_overrides() -> None:
 
 def _keep(index: int) -> None:
     s = _state()
-    result = s["solve"]["result"]
+    result = s["solved"]["result"]
     cand = result.candidates[index]
     _edit(page.keep_layout, cand.layout, notice=f"Arrangement {index + 1} kept: every piece now "
           "has a place; lock the ones that should stay, or check it as it stands.")
@@ -416,8 +416,8 @@ def _solve(plan: Plan, rules: RuleSet) -> None:
         options = solver.SolveOptions(candidates=int(n), time_limit=float(limit), seed=int(seed))
         result = solver.solve(plan, rules, options, progress=progress)
         bar.progress(1.0, text=f"Done in {time.monotonic() - t0:.1f} s.")
-        s["solve"] = {"result": result, "plan": plan, "time_limit": float(limit)}
-    done = s.get("solve")
+        s["solved"] = {"result": result, "plan": plan, "time_limit": float(limit)}
+    done = s.get("solved")
     if not done:
         st.caption("Nothing searched yet for this plan.")
         return
@@ -493,7 +493,7 @@ def _audit(plan: Plan, rules: RuleSet) -> None:
     audit = check.audit(plan, rules)
     fails = audit.failures
     if fails:
-        st.error(f"{len(fails)} of {len(audit.findings)} rule checks fail. Failures are marked "
+        st.warning(f"{len(fails)} of {len(audit.findings)} rule checks fail. Failures are marked "
                  "on the drawing.")
     else:
         st.success(f"All {len(audit.findings)} rule checks pass under {rules.label}.")

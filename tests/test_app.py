@@ -224,7 +224,7 @@ def test_rule_set_and_override_with_sources() -> None:
     _click(at, "Apply values")
     plan = at.session_state["plan"]
     assert plan.rules.override_map() == {"route.width": 1000}
-    table = at.dataframe[-1].value
+    table = next(d.value for d in at.dataframe if "mm" in d.value.columns)
     row = table[table["rule"] == "route.width"].iloc[0]
     assert row["mm"] == "1000" and row["status"] == "overridden for this client"
     _click(at, "Back to the set's own values")
