@@ -14,7 +14,7 @@ from shapely.geometry import Polygon
 
 from roomfit.bench.baseline import AnnealOptions, anneal, layout_cost
 from roomfit.bench.instances import SHAPES, InstanceSpec, floor_demand, generate, wheelchair_set
-from roomfit.bench.run import BenchConfig, run
+from roomfit.bench.run import BenchConfig, markdown, run, summarize
 from roomfit.check import audit
 from roomfit.plan import Layout, Piece, Placement, Plan, Room, RuleChoice
 from roomfit.planfile import dumps_plan, loads_plan
@@ -140,3 +140,43 @@ def test_harness_writes_well_formed_results(tmp_path: Path) -> None:
     svg = ET.fromstring(out.with_suffix(".svg").read_text())  # well-formed XML
     assert svg.tag.endswith("svg")
     assert said and all(m.startswith("[1/1]") for m in said)
+    assert "| one room, 10 pieces: first valid (median) |" in markdown(data)
+
+
+def _row(name: str, tags: tuple[str, ...], solver: dict, baseline: dict | None = None) -> dict:
+    row = {"name": name, "tags": list(tags), "rooms": 1, "pieces": 10, "floor_share": 0.5,
+           "solver": solver}
+    if baseline is not None:
+        row["baseline"] = baseline
+    return row
+
+
+def test_summary_targets_by_hand() -> None:
+    ok = {"status": "found", "candidates": 3, "pass_rate": 1.0}
+    rows = [
+        _row("a", ("first-valid", "generated", "loose"), {**ok, "time_first_valid_s": 0.2},
+             {"success": True}),
+        _row("b", ("first-valid", "generated", "loose"), {**ok, "time_first_valid_s": 0.9},
+             {"success": True}),
+        _row("c", ("first-valid", "generated", "loose"), {**ok, "time_first_valid_s": 0.4},
+             {"success": False}),
+        _row("d", ("three-rooms",), {**ok, "time_all_s": 8.0}),
+        _row("e", ("impossible",), {"status": "impossible", "elapsed_s": 3.5, "explanation": "x"}),
+        _row("f", ("generated", "tight"), {**ok, "pass_rate": 0.5}, {"success": False}),
+        _row("g", ("generated", "tight"), {"status": "timeout", "candidates": 0}, {"success": False}),
+    ]
+    t = summarize(rows)["targets"]
+    assert t["first_valid_1room_10"]["median_s"] == 0.4  # median of 0.2, 0.4, 0.9
+    assert t["first_valid_1room_10"]["met"] is True
+    assert t["three_rooms_25_3cand"]["met"] is True
+    assert t["impossible_explained"]["met"] is False  # 3.5 s > 3 s
+    assert t["all_candidates_valid"]["met"] is False  # instance f: half its candidates failed
+    # tight: solver found something on 1 of 2, the baseline on 0 of 2
+    tight = t["baseline_worse_on_tight"]
+    assert (tight["solver_success"], tight["baseline_success"]) == (0.5, 0.0)
+    assert tight["met"] is True
+    # a run that found nothing counts as the slowest, and the target is then missed
+    rows[0]["solver"]["time_first_valid_s"] = None
+    t = summarize(rows)["targets"]
+    assert t["first_valid_1room_10"]["median_s"] == 0.9
+    assert t["first_valid_1room_10"]["met"] is False
