@@ -439,6 +439,15 @@ def test_random_layouts_give_consistent_findings() -> None:
                 assert f.where is not None and f.measured < f.required
 
 
+@pytest.mark.parametrize("path", SAMPLES, ids=[p.stem for p in SAMPLES])
+def test_widths_false_keeps_every_verdict(path: Path) -> None:
+    plan = read_plan(path)
+    rules = load_ruleset("ada-2010")
+    full, quick = audit(plan, rules), audit(plan, rules, widths=False)
+    assert [(f.rule, f.ok) for f in full.findings] == [(f.rule, f.ok) for f in quick.findings]
+    assert full.failures == quick.failures
+
+
 def test_cli_json_and_exit_codes(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
     sample = SAMPLES[0]
     code = main(["check", str(sample), "--json", "--rules", "ada-2010"])
