@@ -134,16 +134,6 @@ def _show_svg(svg: str) -> None:
                 unsafe_allow_html=True)
 
 
-def _drawing(plan: Plan, rules: RuleSet, marks: Any = (), paths: Any = (),
-             title: str | None = None) -> str | None:
-    if draw is None:
-        _unavailable("The drawing")
-        return None
-    svg = draw.draw_svg(plan, rules, marks=marks, paths=paths, title=title)
-    _show_svg(svg)
-    return svg
-
-
 # ---------------------------------------------------------------------------------------------
 # callbacks (run before the page is drawn again)
 
@@ -289,10 +279,17 @@ def _overview(plan: Plan, rules: RuleSet) -> None:
     cols[2].metric("Windows", len(plan.windows))
     cols[3].metric("Pieces", len(plan.furniture))
     cols[4].metric("Placed", sum(p.placement is not None for p in plan.furniture))
-    st.dataframe([{"room": r.id, "name": r.label, "use": r.use,
-                   "area (m²)": round(room_polygon(r).area / 1e6, 2)} for r in plan.rooms],
-                 hide_index=True)
-    _drawing(plan, rules, title=plan.name)
+    left, right = st.columns([3, 2])
+    with right:
+        st.dataframe([{"room": r.id, "name": r.label, "use": r.use,
+                       "area (m²)": round(room_polygon(r).area / 1e6, 2)} for r in plan.rooms],
+                     hide_index=True)
+        st.caption("Furniture is drawn where the plan puts it; the Furniture tab lists it.")
+    with left:
+        if draw is None:
+            _unavailable("The drawing")
+        else:
+            _show_svg(_memo("overview", plan, lambda: draw.draw_svg(plan, rules, title=plan.name)))
 
 
 def _furniture(plan: Plan, rules: RuleSet) -> None:
@@ -391,9 +388,24 @@ def _rules(plan: Plan, rules: RuleSet) -> None:
     st.dataframe(page.rule_rows(rules), hide_index=True)
 
 
-def _findings(plan: Plan, rules: RuleSet) -> Any:
-    """Audit ``plan`` (its placed pieces) with the checker the CLI uses."""
-    return check.audit(plan, rules) if check is not None else None
+def _memo(name: str, key: Any, compute: Any) -> Any:
+    """``compute()`` kept in the session while ``key`` (a plan, say) stays the same, so that
+    redrawing the page after a click does not audit and draw everything again."""
+    s = _state()
+    held = s.get(f"memo_{name}")
+    if held is None or held[0] != key:
+        held = (key, compute())
+        s[f"memo_{name}"] = held
+    return held[1]
+
+
+def _present(row: Any, index: int) -> dict[str, Any]:
+    """One arrangement, audited, routed and measured (a ``compare.Row``), with its drawing
+    (routes drawn, failures marked; ids prefixed by ``index``) and its client report."""
+    single = compare.Comparison((row,), ())
+    title = f"{row.plan.name}: {row.name}"
+    return {"row": row, "svg": report.drawing(row, index),
+            "report": report.build_report(single, caution=CAUTION, title=title)}
 
 
 def _solve(plan: Plan, rules: RuleSet) -> None:
@@ -406,17 +418,21 @@ def _solve(plan: Plan, rules: RuleSet) -> None:
     limit = c2.slider("Time limit (s)", 5, 120, 20, step=5, key="time_limit")
     seed = c3.number_input("Seed", 0, 10_000, 0, key="seed",
                            help="The same seed and time limit give the same arrangements.")
+    locked = [p.id for p in plan.furniture if p.locked]
+    st.caption(f"{len(plan.furniture)} pieces under {rules.label}"
+               + (f"; locked where they stand: {', '.join(locked)}" if locked else ""))
     if st.button("Find arrangements", key="solve", type="primary"):
         bar = st.progress(0.0, text="Starting…")
         t0 = time.monotonic()
 
         def progress(msg: str) -> None:
-            bar.progress(min(0.99, (time.monotonic() - t0) / limit), text=msg)
+            bar.progress(min(0.99, (time.monotonic() - t0) / limit), text=msg[:200])
 
         options = solver.SolveOptions(candidates=int(n), time_limit=float(limit), seed=int(seed))
         result = solver.solve(plan, rules, options, progress=progress)
-        bar.progress(1.0, text=f"Done in {time.monotonic() - t0:.1f} s.")
-        s["solved"] = {"result": result, "plan": plan, "time_limit": float(limit)}
+        bar.progress(1.0, text=f"Searched for {time.monotonic() - t0:.1f} s.")
+        s["solved"] = {"result": result, "plan": plan, "rules": rules, "time_limit": float(limit),
+                       "shown": None}
     done = s.get("solved")
     if not done:
         st.caption("Nothing searched yet for this plan.")
@@ -424,63 +440,72 @@ def _solve(plan: Plan, rules: RuleSet) -> None:
     if done["plan"] != plan:
         st.info("The plan has changed since these arrangements were found; search again to "
                 "include the changes.")
-    _results(done["plan"], rules_for(done["plan"]), done["result"], done["time_limit"])
+    _results(done)
 
 
-def _results(plan: Plan, rules: RuleSet, result: Any, time_limit: float) -> None:
-    outcome = page.describe_outcome(result, time_limit)
+def _results(done: dict[str, Any]) -> None:
+    plan, rules, result = done["plan"], done["rules"], done["result"]
+    outcome = page.describe_outcome(result, done["time_limit"])
     show = {"success": st.success, "warning": st.warning, "error": st.error}[outcome.level]
     show(outcome.headline + ("\n\n" + "\n".join(f"- {d}" for d in outcome.details)
                              if outcome.details else ""))
     _caution()
     if not result.candidates:
         return
-    plans = [plan.with_layout(c.layout) for c in result.candidates]
-    cols = st.columns(len(plans))
-    for i, (col, cand, p) in enumerate(zip(cols, result.candidates, plans, strict=True)):
+    if compare is None or report is None:
+        _unavailable("Comparing arrangements")
+        return
+    if done["shown"] is None:
+        with st.spinner("Checking and drawing each arrangement…"):
+            table = compare.compare([plan.with_layout(c.layout) for c in result.candidates],
+                                    [f"Arrangement {i + 1}" for i in range(len(result.candidates))],
+                                    rules)
+            shown = [_present(row, i) for i, row in enumerate(table.rows)]
+            done["shown"] = (shown, table, report.build_report(table, caution=CAUTION))
+    shown, table, both = done["shown"]
+    cols = st.columns(len(shown))
+    for i, (col, cand, a) in enumerate(zip(cols, result.candidates, shown, strict=True)):
         with col, _panel(f"arrangement {i + 1}"):
-            _candidate(i, cand, p, rules)
-    if compare is not None:
-        with _panel("comparison"):
-            st.markdown("**Side by side**")
-            table = compare.compare(plans, rules)
-            st.dataframe(_comparison_rows(table), hide_index=True)
+            _candidate(i, cand, a)
+    st.markdown("**Side by side** (★ best value)")
+    st.dataframe(page.comparison_rows(table), hide_index=True)
+    st.download_button("Client report with every arrangement (.html)", both,
+                       file_name=f"{page.file_stem(plan)}-arrangements.html", mime="text/html",
+                       key="dl_report_all")
+    _caution()
 
 
-def _comparison_rows(table: Any) -> Any:
-    rows = getattr(table, "rows", None)
-    if rows is None:
-        return table
-    return [r if isinstance(r, dict) else getattr(r, "__dict__", r) for r in rows]
-
-
-def _candidate(i: int, cand: Any, plan: Plan, rules: RuleSet) -> None:
+def _candidate(i: int, cand: Any, a: dict[str, Any]) -> None:
+    row = a["row"]
     st.markdown(f"#### Arrangement {i + 1}")
-    audit = _findings(plan, rules)
-    marks = check.marks_for(audit) if audit is not None else ()
-    svg = _drawing(plan, rules, marks=marks, title=f"{plan.name} — arrangement {i + 1}")
-    m1, m2 = st.columns(2)
-    if audit is not None:
-        m1.metric("Rules passed", f"{sum(f.ok for f in audit.findings)}/{len(audit.findings)}")
-    m2.metric("Score", f"{cand.objective:g}", help="Lower is better; used to rank arrangements.")
-    if audit is not None:
-        with st.expander("Rule findings"):
-            st.dataframe(page.findings_rows(audit.findings), hide_index=True)
+    _show_svg(a["svg"])
+    m1, m2, m3 = st.columns(3)
+    m1.metric("Rules failed", row.text("rules_failed"))
+    m2.metric("Walking a day", row.text("walking"))
+    m3.metric("Narrowest route", row.text("narrowest"))
+    st.caption(f"Turning spaces: {row.text('turning')} · free floor {row.text('free_floor')} · "
+               f"preferences met {row.text('preferences')} · score {cand.objective:g}"
+               + (" (best possible)" if cand.optimal else ""))
+    with st.expander("Rule findings"):
+        st.dataframe(page.findings_rows(row.audit.findings), hide_index=True)
+    with st.expander("Daily routes"):
+        st.dataframe(page.route_rows(row.routes), hide_index=True)
     st.button("Keep this arrangement", key=f"keep_{i}", on_click=_keep, args=(i,))
-    _downloads(plan, svg, f"cand{i + 1}", f"-arrangement-{i + 1}")
+    _downloads(row.plan, a, f"cand{i + 1}", f"-arrangement-{i + 1}")
 
 
-def _downloads(plan: Plan, svg: str | None, key: str, suffix: str) -> None:
+def _downloads(plan: Plan, a: dict[str, Any], key: str, suffix: str) -> None:
     stem = page.file_stem(plan) + suffix
     st.download_button("Furnished plan (.toml)", dumps_plan(plan), file_name=f"{stem}.toml",
                        mime="application/toml", key=f"dl_plan_{key}")
-    if svg is not None:
-        st.download_button("Drawing (.svg)", svg, file_name=f"{stem}.svg", mime="image/svg+xml",
-                           key=f"dl_svg_{key}")
+    st.download_button("Drawing (.svg)", a["svg"], file_name=f"{stem}.svg", mime="image/svg+xml",
+                       key=f"dl_svg_{key}")
+    st.download_button("Client report (.html)", a["report"], file_name=f"{stem}.html",
+                       mime="text/html", key=f"dl_report_{key}")
 
 
 def _audit(plan: Plan, rules: RuleSet) -> None:
-    if check is None:
+    if compare is None or report is None:
         _unavailable("Checking an arrangement")
         return
     if not plan.layout:
@@ -490,17 +515,26 @@ def _audit(plan: Plan, rules: RuleSet) -> None:
     unplaced = [p.id for p in plan.furniture if p.placement is None]
     if unplaced:
         st.caption("Not placed, so not checked: " + ", ".join(unplaced))
-    audit = check.audit(plan, rules)
-    fails = audit.failures
+    a = _memo("asis", plan, lambda: _present(compare.compare_row(plan, "As it stands", rules), 9))
+    row = a["row"]
+    fails = row.audit.failures
     if fails:
-        st.warning(f"{len(fails)} of {len(audit.findings)} rule checks fail. Failures are marked "
-                 "on the drawing.")
+        st.warning(f"{len(fails)} of {len(row.audit.findings)} rule checks fail under "
+                   f"{rules.label}. Failures are marked on the drawing.")
     else:
-        st.success(f"All {len(audit.findings)} rule checks pass under {rules.label}.")
+        st.success(f"All {len(row.audit.findings)} rule checks pass under {rules.label}.")
     _caution()
-    svg = _drawing(plan, rules, marks=check.marks_for(audit), title=f"{plan.name} — as it stands")
-    st.dataframe(page.findings_rows(audit.findings), hide_index=True)
-    _downloads(plan, svg, "asis", "-as-is")
+    left, right = st.columns([3, 2])
+    with left:
+        _show_svg(a["svg"])
+    with right:
+        for m in compare.METRICS:
+            st.markdown(f"**{m.label}:** {row.text(m.id)}")
+        _downloads(plan, a, "asis", "-as-is")
+    st.markdown("**Rule findings** (failures first)")
+    st.dataframe(page.findings_rows(row.audit.findings), hide_index=True)
+    st.markdown("**Daily routes**")
+    st.dataframe(page.route_rows(row.routes), hide_index=True)
 
 
 # ---------------------------------------------------------------------------------------------

@@ -53,6 +53,8 @@ __all__ = [
     "piece_rows",
     "rule_rows",
     "findings_rows",
+    "route_rows",
+    "comparison_rows",
     "describe_outcome",
     "file_stem",
 ]
@@ -267,18 +269,56 @@ def rule_rows(rules: RuleSet) -> list[dict[str, Any]]:
 
 
 def findings_rows(findings: Sequence[Any]) -> list[dict[str, Any]]:
-    """One row per audit finding (``check.Finding``), failures first."""
+    """One row per audit finding (``check.Finding``), failures first; areas in mm²."""
+    from roomfit.check import AREA_RULES
+
+    def amount(f: Any, v: float | None) -> str:
+        if v is None:
+            return ""
+        return f"{v:.0f} mm²" if f.rule in AREA_RULES else f"{v:.0f} mm"
+
     ordered = sorted(findings, key=lambda f: f.ok)
     return [{
         "result": "pass" if f.ok else "FAIL",
         "rule": f.rule,
         "finding": f.message,
-        "measured": "" if f.measured is None else f"{f.measured:.0f}",
-        "required": "" if f.required is None else f"{f.required:.0f}",
+        "measured": amount(f, f.measured),
+        "required": amount(f, f.required),
         "pieces": ", ".join(f.pieces),
         "room": f.room or "",
         "source": f.source,
     } for f in ordered]
+
+
+def route_rows(routes: Any) -> list[dict[str, Any]]:
+    """One row per routine trip of ``routes.RouteScores``: length, narrowest point, doors."""
+    rows = []
+    for t in routes.trips:
+        rows.append({
+            "trip": t.name + (" (night)" if t.night else ""),
+            "per day": t.per_day,
+            "length (m)": None if t.length_mm is None else round(t.length_mm / 1000, 1),
+            "metres a day": round(t.metres_per_day, 1),
+            "narrowest (mm)": None if t.narrowest_mm is None else round(t.narrowest_mm),
+            "turns": t.turns,
+            "doorways": ", ".join(t.doors),
+            "note": t.reason if not t.reachable else "; ".join(t.flags),
+        })
+    return rows
+
+
+def comparison_rows(comparison: Any, best_mark: str = " ★") -> list[dict[str, str]]:
+    """The metrics of ``compare.Comparison`` as table rows: one row per metric, one column per
+    arrangement, the best value(s) marked with ``best_mark``."""
+    from roomfit.compare import METRICS
+
+    rows = []
+    for m in METRICS:
+        row = {"metric": m.label}
+        for i, r in enumerate(comparison.rows):
+            row[r.name] = r.text(m.id) + (best_mark if comparison.is_best(m.id, i) else "")
+        rows.append(row)
+    return rows
 
 
 @dataclass(frozen=True)
