@@ -20,6 +20,7 @@ from roomfit.rules import load_ruleset, rules_for
 ROOT = Path(__file__).resolve().parent.parent
 APP = str(ROOT / "app.py")
 STUDIO = ROOT / "plans" / "studio.toml"
+CAUTION_TEXT = "Local building codes, the accessibility standards in force"
 
 
 def _app() -> AppTest:
@@ -239,3 +240,137 @@ def test_saved_plan_reads_back_equal() -> None:
     plan = at.session_state["plan"]
     assert loads_plan(dumps_plan(plan)) == plan
     assert at.sidebar.get("download_button")
+
+
+# --- solving, comparing and auditing on the page ------------------------------------------------
+
+WHEELCHAIR = "ground-floor-wheelchair.toml"
+
+# One 2.0 x 2.0 m room with an entrance door and a double bed: the bed's frame, 1700 x 2100 mm,
+# is longer than the room in either turn, so no arrangement exists (worked out by hand).
+TOO_SMALL = b"""roomfit_plan = 1
+name = "Box room"
+[rules]
+set = "everyday"
+[[rooms]]
+id = "box"
+use = "bedroom"
+outline = [[0, 0], [2000, 0], [2000, 2000], [0, 2000]]
+[[doors]]
+id = "d-in"
+rooms = ["box", "outside"]
+at = [1000, 0]
+width = 800
+leaf = "sliding"
+[[furniture]]
+id = "bed"
+type = "bed-double-160"
+room = "box"
+"""
+
+
+def _open_sample(at: AppTest, name: str) -> None:
+    at.sidebar.selectbox(key="sample_choice").set_value(name)
+    _click(at, "Open this sample")
+    assert at.session_state["plan"] == read_plan(ROOT / "plans" / name)
+
+
+def _markdown(at: AppTest) -> str:
+    return "\n".join(m.value for m in at.markdown)
+
+
+@pytest.mark.skipif(page.optional_module("solver") is None, reason="roomfit.solver not available")
+def test_solve_compare_keep_and_check_on_the_page() -> None:
+    from roomfit.check import audit
+
+    at = _app()
+    _open_sample(at, WHEELCHAIR)
+    at.slider(key="n_candidates").set_value(2)
+    at.slider(key="time_limit").set_value(30)
+    at.button(key="solve").click()
+    at.run(timeout=240)
+    assert not at.exception, at.exception
+    solved = at.session_state["solved"]
+    result = solved["result"]
+    assert result.status in ("found", "optimal") and len(result.candidates) >= 2
+    assert any("arrangements found" in s.value for s in at.success)
+    md = _markdown(at)
+    n = len(result.candidates)
+    for i in range(n):
+        assert f"#### Arrangement {i + 1}" in md
+    assert md.count('<div class="rf-drawing"><svg') >= n  # each candidate drawn inline
+    assert "Caution: these results are advisory" in md
+    # the checker judges every candidate the page shows: all pass, and the page says so
+    plan = solved["plan"]
+    rules = rules_for(plan)
+    for cand in result.candidates:
+        verdict = audit(plan.with_layout(cand.layout), rules)
+        assert verdict.passed, [f.message for f in verdict.failures]
+    shown = [m.value for m in at.metric if m.label == "Rules failed"][-n:]
+    assert all(v.startswith("0 of ") for v in shown), shown
+    table = next(d.value for d in at.dataframe if "metric" in d.value.columns)
+    assert [c for c in table.columns if c != "metric"] == [f"Arrangement {i + 1}" for i in range(n)]
+    # the furnished plan offered for download reads back as the candidate's layout
+    first = solved["shown"][0][0]
+    assert loads_plan(dumps_plan(first["row"].plan)).layout == plan.with_layout(
+        result.candidates[0].layout).layout
+    assert first["svg"].lstrip().startswith("<svg") and "<html" in first["report"].lower()
+    assert CAUTION_TEXT in first["report"]
+    # keep the second arrangement: every piece gets its place, and the check tab agrees
+    at.button(key="keep_1").click()
+    at.run(timeout=120)
+    kept = at.session_state["plan"]
+    assert kept.layout == plan.with_layout(result.candidates[1].layout).layout
+    assert any(s.value.startswith("All ") and "rule checks pass" in s.value for s in at.success)
+
+
+@pytest.mark.skipif(page.optional_module("solver") is None, reason="roomfit.solver not available")
+def test_impossible_plan_shows_the_reason_and_keeps_running() -> None:
+    at = _app()
+    at.sidebar.file_uploader[0].set_value(("box.toml", TOO_SMALL, "application/toml"))
+    at.run()
+    assert at.session_state["plan"].name == "Box room"
+    at.button(key="solve").click()
+    at.run(timeout=120)
+    assert not at.exception
+    assert at.session_state["solved"]["result"].status == "impossible"
+    text = _errors(at)
+    assert "No arrangement exists:" in text
+    assert at.session_state["solved"]["result"].explanation.summary in text
+    assert "Caution: these results are advisory" in _markdown(at)
+    assert at.subheader[0].value == "Box room"  # the rest of the page is still there
+
+
+def test_check_tab_gives_the_cli_findings(capsys: pytest.CaptureFixture[str]) -> None:
+    import json
+
+    from roomfit.cli import main
+
+    assert main(["check", str(STUDIO), "--json"]) in (0, 1)
+    record = json.loads(capsys.readouterr().out)
+    at = _app()
+    findings = next(d.value for d in at.dataframe
+                    if "result" in d.value.columns and "finding" in d.value.columns)
+    assert len(findings) == record["checked"]
+    assert int((findings["result"] == "FAIL").sum()) == record["failed"]
+    cli_fails = sorted(f["message"] for f in record["findings"] if not f["ok"])
+    assert sorted(findings[findings["result"] == "FAIL"]["finding"]) == cli_fails
+    if record["failed"]:
+        assert any(f"{record['failed']} of {record['checked']} rule checks fail" in w.value
+                   for w in at.warning)
+    # failures are marked on the drawing: one mark per failure in the as-is drawing
+    asis = at.session_state["memo_asis"][1]["svg"]
+    assert asis.count('class="mark mark-fail"') == record["failed"]
+
+
+def test_outcome_words_for_timeout_and_impossible() -> None:
+    from roomfit.solver import Explanation, SolveResult, SolveStats
+
+    none = SolveResult("timeout", (), None, SolveStats())
+    words = page.describe_outcome(none, 20)
+    assert words.level == "warning" and "does not prove" in words.headline
+    ex = Explanation("the bed is longer than the room", ("bed",), ("piece.inside",),
+                     ("without the bed it fits",))
+    no = page.describe_outcome(SolveResult("impossible", (), ex, SolveStats()), 20)
+    assert no.level == "error" and "the bed is longer than the room" in no.headline
+    assert no.details == ("Try: without the bed it fits",)
