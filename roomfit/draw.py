@@ -423,6 +423,7 @@ def _draw_paths(c: _Canvas, paths: Sequence[Path]) -> None:
 
 def _draw_marks(c: _Canvas, marks: Sequence[Mark]) -> None:
     c.add('<g class="marks">')
+    placed: list[tuple[float, float]] = []
     for i, m in enumerate(marks, start=1):
         colour = STYLE["fail"] if m.kind == "fail" else STYLE["note"]
         c.add(f'<g class="mark mark-{escape(m.kind)}">')
@@ -436,9 +437,13 @@ def _draw_marks(c: _Canvas, marks: Sequence[Mark]) -> None:
                 where = (rp.x, rp.y)
         if where is not None:
             sx, sy = c.pt(*where)
-            c.add(f'<circle cx="{_num(sx)}" cy="{_num(sy)}" r="{_num(c.px(8))}" fill="{colour}" '
+            r = c.px(8)
+            while any(math.hypot(sx - ox, sy - oy) < 2 * r for ox, oy in placed):
+                sx += 2.2 * r  # several marks at one point: set the discs side by side
+            placed.append((sx, sy))
+            c.add(f'<circle cx="{_num(sx)}" cy="{_num(sy)}" r="{_num(r)}" fill="{colour}" '
                   f'stroke="{STYLE["paper"]}" stroke-width="{_num(c.px(1.5))}"/>')
-            c.add(c.text(where[0], where[1], str(i), 9, weight="bold", fill=STYLE["paper"]))
+            c.add(c.text(sx, sy, str(i), 9, weight="bold", fill=STYLE["paper"], plan=False))
         c.add("</g>")
     c.add("</g>")
 

@@ -169,3 +169,14 @@ def test_cli_draw_refuses_to_overwrite_its_input(tmp_path: Path,
     assert main(["draw", str(plan), "-o", str(plan)]) == 2
     assert "never overwrites its inputs" in capsys.readouterr().err
     assert plan.read_text(encoding="utf-8") == original
+
+
+def test_marks_at_one_point_are_set_side_by_side() -> None:
+    plan = read_plan(Path(__file__).parent.parent / "plans" / "studio.toml")
+    marks = [Mark("fail", f"problem {i}", (2000, 3000), ()) for i in range(3)]
+    root = _svg(plan, marks=marks)
+    centres = [(float(c.get("cx", 0)), float(c.get("cy", 0)))
+               for g in _classed(root, "g", "mark") for c in g.iter(f"{{{NS['s']}}}circle")]
+    assert len(centres) == 3 and len({cy for _, cy in centres}) == 1
+    xs = sorted(cx for cx, _ in centres)
+    assert all(b - a > 0 for a, b in zip(xs, xs[1:], strict=False))
