@@ -551,6 +551,31 @@ def _passage_width(base: _Base, p: np.ndarray, cap: float) -> float:
     return float(2 * cap)
 
 
+def _half_plane_bound(segs: np.ndarray, p: np.ndarray, q: np.ndarray) -> float:
+    """A lower bound on the passage width at ``p``: ``d + d_h``, with ``d`` the distance to
+    the nearest blocker point ``q`` and ``d_h`` the distance to the blockers' edges (``segs``)
+    in the half-plane facing away from ``q`` (every chord has one half in that half-plane)."""
+    d = float(np.hypot(*(q - p)))
+    if d < 1e-6 or not len(segs):
+        return 0.0
+    n = (p - q) / d                                   # away from the nearest blocker
+    a, b = segs[:, :2], segs[:, 2:]
+    sa, sb = (a - p) @ n, (b - p) @ n
+    keep = (sa >= 0) | (sb >= 0)
+    a, b, sa, sb = a[keep], b[keep], sa[keep], sb[keep]
+    with np.errstate(divide="ignore", invalid="ignore"):
+        t = np.where(sa != sb, sa / (sa - sb), 0.0)[:, None]
+    cut = a + t * (b - a)
+    a = np.where((sa < 0)[:, None], cut, a)
+    b = np.where((sb < 0)[:, None], cut, b)
+    e = b - a
+    ee = np.einsum("ij,ij->i", e, e)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        s = np.clip(np.where(ee > 0, np.einsum("ij,ij->i", p - a, e) / ee, 0.0), 0.0, 1.0)
+    dist = np.hypot(*(a + s[:, None] * e - p).T)
+    return d + (float(dist.min()) if len(dist) else math.inf)
+
+
 def _narrowest(space: _Space, points: Sequence[XY],
                known: tuple[float, XY] | None = None) -> tuple[float, XY]:
     """Least passage width along the route, or ``known`` (a doorway's width) if narrower.
@@ -559,11 +584,16 @@ def _narrowest(space: _Space, points: Sequence[XY],
     blocker, so points whose bound reaches the best width so far are not measured.
     """
     pts = _samples(points, SAMPLE_STEP_MM)
-    lower = 2 * shapely.distance(shapely.points(pts), space.base.blocker_union)
+    blockers = space.base.blocker_union
+    near = shapely.shortest_line(shapely.points(pts), blockers)
+    lower = 2 * shapely.length(near)
+    ends = shapely.get_coordinates(shapely.get_point(near, 1))
     best, where = known if known is not None else (float(WIDTH_CAP_MM), tuple(pts[0]))
     for k in np.argsort(lower):
         if lower[k] >= best:
             break
+        if _half_plane_bound(space.base.edges, pts[k], ends[k]) >= best:
+            continue
         w = _passage_width(space.base, pts[k], WIDTH_CAP_MM / 2)
         if w < best:
             best, where = w, (float(pts[k][0]), float(pts[k][1]))
