@@ -551,13 +551,18 @@ def _passage_width(base: _Base, p: np.ndarray, cap: float) -> float:
     return float(2 * cap)
 
 
-def _half_plane_bound(segs: np.ndarray, p: np.ndarray, q: np.ndarray) -> float:
+def _half_plane_bound(segs: np.ndarray, p: np.ndarray, q: np.ndarray, reach: float) -> float:
     """A lower bound on the passage width at ``p``: ``d + d_h``, with ``d`` the distance to
     the nearest blocker point ``q`` and ``d_h`` the distance to the blockers' edges (``segs``)
-    in the half-plane facing away from ``q`` (every chord has one half in that half-plane)."""
+    in the half-plane facing away from ``q`` (every chord has one half in that half-plane).
+    Edges farther than ``reach`` are not looked at (the bound is then at least ``reach``)."""
     d = float(np.hypot(*(q - p)))
-    if d < 1e-6 or not len(segs):
+    lo, hi = np.minimum(segs[:, :2], segs[:, 2:]), np.maximum(segs[:, :2], segs[:, 2:])
+    segs = segs[np.all((lo <= p + reach) & (hi >= p - reach), axis=1)]
+    if d < 1e-6:
         return 0.0
+    if not len(segs):
+        return d + reach
     n = (p - q) / d                                   # away from the nearest blocker
     a, b = segs[:, :2], segs[:, 2:]
     sa, sb = (a - p) @ n, (b - p) @ n
@@ -573,7 +578,7 @@ def _half_plane_bound(segs: np.ndarray, p: np.ndarray, q: np.ndarray) -> float:
     with np.errstate(divide="ignore", invalid="ignore"):
         s = np.clip(np.where(ee > 0, np.einsum("ij,ij->i", p - a, e) / ee, 0.0), 0.0, 1.0)
     dist = np.hypot(*(a + s[:, None] * e - p).T)
-    return d + (float(dist.min()) if len(dist) else math.inf)
+    return d + (min(float(dist.min()), reach) if len(dist) else reach)
 
 
 def _narrowest(space: _Space, points: Sequence[XY],
@@ -592,7 +597,7 @@ def _narrowest(space: _Space, points: Sequence[XY],
     for k in np.argsort(lower):
         if lower[k] >= best:
             break
-        if _half_plane_bound(space.base.edges, pts[k], ends[k]) >= best:
+        if _half_plane_bound(space.base.edges, pts[k], ends[k], best) >= best:
             continue
         w = _passage_width(space.base, pts[k], WIDTH_CAP_MM / 2)
         if w < best:
@@ -705,13 +710,13 @@ def _why_apart(plan: Plan, space: _Space, origin: str | XY, target: str | XY) ->
     """Plain words for two places the walkway does not join: the widest way that does
     (found by bisection on the body width to within 20 mm), or the doorways that are shut."""
 
-    def way(width: float) -> tuple[float, XY] | None:
+    def way(width: float) -> list[XY] | None:
         try:
             core, _ = _best_route(plan, _build_space(space.base, width), origin, target,
                                   explain=False)
         except _Unreachable:
             return None
-        return _narrowest(space, core)
+        return core
 
     head = f"no way {space.width:.0f} mm wide joins them"
     lo, hi = _MIN_WAY, space.width
@@ -723,9 +728,10 @@ def _why_apart(plan: Plan, space: _Space, origin: str | XY, target: str | XY) ->
         mid = (lo + hi) / 2
         better = way(mid)
         lo, hi, found = (mid, hi, better) if better else (lo, mid, found)
-    sides = " and ".join(_between(space, found[1]))
-    return (f"{head}; the widest way is about {found[0]:.0f} mm, at "
-            f"({found[1][0]:.0f}, {found[1][1]:.0f}) between {sides}")
+    width, where = _narrowest(space, found)
+    sides = " and ".join(_between(space, where))
+    return (f"{head}; the widest way is about {width:.0f} mm, at "
+            f"({where[0]:.0f}, {where[1]:.0f}) between {sides}")
 
 
 # --- routines -------------------------------------------------------------------------------
