@@ -28,7 +28,8 @@ free floor), a fitting id (the centre of its use zone, or the nearest walkway po
 it), a piece id (the centre of its main use zone, the first its catalogue type lists, or the
 nearest walkway point beside it). A place off the walkway (the middle of a bed-side zone
 narrower than the body) is reached by a last straight step from the nearest walkway point
-that crosses nothing.
+that crosses nothing. Where the rule set allows a short stretch at ``route.pinch_width``, a
+trip with no way at the full width is routed at the pinch width and flagged.
 
 Worked example, checked by hand: in an empty 4000 x 3000 mm room, the route from
 (1000, 1000) to (3000, 2000) is the straight line, sqrt(2000**2 + 1000**2) = 2236.1 mm.
@@ -213,6 +214,7 @@ class _Space:
     graph: nx.Graph = field(default_factory=nx.Graph)
     nodes: list[XY] = field(default_factory=list)
     node_part: list[int] = field(default_factory=list)
+    pinch: _Space | None = None              # walkway at the rule set's pinch width, if any
 
 
 def _frame(at: XY, u: XY, n: XY, u0: float, u1: float, n0: float, n1: float) -> Polygon:
@@ -668,27 +670,52 @@ def _best_route(plan: Plan, space: _Space, origin: str | XY, target: str | XY,
     return best[1], best[2]
 
 
+def _pinch_space(space: _Space) -> _Space | None:
+    """The walkway at ``route.pinch_width`` when the rule set allows a short narrower stretch
+    (2010 ADA §403.5.1: 32 in for at most 24 in), built once; None when it allows none."""
+    rules = space.base.rules
+    if not (rules.has("route.pinch_width") and rules.has("route.pinch_length")):
+        return None
+    pinch, length = rules.mm("route.pinch_width"), rules.mm("route.pinch_length")
+    if pinch >= space.width or length <= 0:
+        return None
+    if space.pinch is None:
+        space.pinch = _build_space(space.base, float(pinch))
+    return space.pinch
+
+
 def _trip(plan: Plan, space: _Space, trip: Trip, origin: str | XY,
           target: str | XY) -> TripScore:
     base = {"origin": trip.origin, "target": trip.target, "label": trip.label,
             "per_day": trip.per_day, "night": trip.night}
     name = trip.label or f"{trip.origin} to {trip.target}"
+    flags: list[str] = []
+    route_width = space.width
     try:
         core, points = _best_route(plan, space, origin, target)
     except _Unreachable as e:
-        flags = (f"night route {name}: unreachable ({e})",) if trip.night else ()
-        return TripScore(**base, reachable=False, reason=str(e), flags=flags)
+        narrower = _pinch_space(space)
+        try:
+            if narrower is None:
+                raise
+            core, points = _best_route(plan, narrower, origin, target, explain=False)
+        except _Unreachable:
+            night = (f"night route {name}: unreachable ({e})",) if trip.night else ()
+            return TripScore(**base, reachable=False, reason=str(e), flags=night)
+        length = space.base.rules.mm("route.pinch_length")
+        flags.append(f"{name}: only passable at the {narrower.width:.0f} mm pinch width, "
+                     f"allowed for at most {length} mm (the audit checks the length)")
+        space = narrower
     doors = _doors_passed(space, points)
     door = min(((float(dw), c) for _, dw, c in doors), default=None)
     width, where = _narrowest(space, core, door)
     length = _length(points)
-    flags: list[str] = []
     if trip.night and length > NIGHT_LONG_MM:
         flags.append(f"night route {name}: {length / 1000:.1f} m, longer than "
                      f"{NIGHT_LONG_MM / 1000:.0f} m (common practice)")
-    if trip.night and width < space.width:
+    if trip.night and width < route_width:
         flags.append(f"night route {name}: narrows to {width:.0f} mm, under the "
-                     f"{space.width:.0f} mm route width")
+                     f"{route_width:.0f} mm route width")
     return TripScore(
         **base, reachable=True, length_mm=length, points=tuple(points),
         narrowest_mm=width, narrowest_at=where, narrowest_between=_between(space, where),

@@ -147,6 +147,20 @@ def test_gap_under_route_width_is_unreachable_with_the_widest_way_named():
     assert "a and b" in t.reason or "b and a" in t.reason
 
 
+def test_pinch_allowance_lets_a_short_narrow_gap_through():
+    ada = load_ruleset("ada-2010")
+    # 2010 ADA §403.5.1: routes 36 in (914.4 mm), 32 in (812.8 mm) allowed for at most 24 in
+    assert abs(ada.get("route.width").exact_mm - 36 * 25.4) < 1e-9
+    assert abs(ada.get("route.pinch_width").exact_mm - 32 * 25.4) < 1e-9
+    ok = route(_gap_plan(850), ada, (2500, 500), (2500, 3500))  # 850 mm: between 32 and 36 in
+    assert ok.reachable and ok.narrowest_mm == pytest.approx(850, abs=10)
+    assert any("pinch width" in f for f in ok.flags)
+    shut = route(_gap_plan(800), ada, (2500, 500), (2500, 3500))  # under 32 in
+    assert not shut.reachable and "914 mm" in shut.reason
+    # the everyday set has no pinch allowance: 850 mm passes at its 30 in width, no flag
+    assert route(_gap_plan(850), EVERYDAY, (2500, 500), (2500, 3500)).flags == ()
+
+
 def _two_rooms(door_width: int, wall: int = 0, pieces=()) -> Plan:
     rooms = [_room("r", 0, 0, 3000, 3000), _room("s", 3000 + wall, 0, 6000 + wall, 3000)]
     door = Door("d1", ("r", "s"), (3000, 1500), door_width, Leaf.NONE)
