@@ -25,11 +25,12 @@ skipped. The narrowest width of a route is the least such width along it, sample
 Places a trip can start or end at: ``"entrance"`` (the centre of the entrance door), a door
 id (the centre of the doorway), a room id (the centre of the largest circle in the room's
 free floor), a fitting id (the centre of its use zone, or the nearest walkway point beside
-it), a piece id (the centre of its main use zone, the first its catalogue type lists, or the
-nearest walkway point beside it). A place off the walkway (the middle of a bed-side zone
-narrower than the body) is reached by a last straight step from the nearest walkway point
-that crosses nothing. Where the rule set allows a short stretch at ``route.pinch_width``, a
-trip with no way at the full width is routed at the pinch width and flagged.
+it), a piece id (the centre of each of its use zones: the trip takes the nearest one a route
+reaches, say either side of a bed; without zones, the nearest walkway point beside it).
+A place off the walkway (the middle of a bed-side zone narrower than the body) is reached by
+a last straight step from the nearest walkway point that crosses nothing. Where the rule set
+allows a short stretch at ``route.pinch_width``, a trip with no way at the full width is
+routed at the pinch width and flagged.
 
 Worked example, checked by hand: in an empty 4000 x 3000 mm room, the route from
 (1000, 1000) to (3000, 2000) is the straight line, sqrt(2000**2 + 1000**2) = 2236.1 mm.
