@@ -21,13 +21,13 @@ from pathlib import Path
 from typing import Any
 
 import tomli_w
-from shapely import Polygon
+from shapely import LineString, Point, Polygon
 from shapely.validation import explain_validity
 
 from roomfit.catalog import load_catalog
 from roomfit.errors import PlanError, Problem, RoomfitError
 from roomfit.files import atomic_write
-from roomfit.geometry import nearest_edge
+from roomfit.geometry import nearest_edge, wall_direction
 from roomfit.plan import (
     FORMAT_VERSION,
     OUTSIDE,
@@ -228,6 +228,27 @@ def _on_wall(r: _Reader, room: Room, at: tuple[int, int], width: int, field: str
               f"of room {room.id!r}, {edge:.0f} mm long)", "move it along the wall")
 
 
+def _reaches_other_room(r: _Reader, host: Room, other: Room, at: tuple[int, int], width: int,
+                        wall: float, field: str) -> None:
+    """Check that the whole opening leads into ``other``, not partly into a wall beyond it.
+
+    The opening is carried across the wall (``wall`` mm thick) and must then lie on
+    ``other``'s floor or wall, within :data:`ON_WALL_TOLERANCE`.
+    """
+    u = wall_direction(host.outline, at)
+    n = (-u[1], u[0])
+    if Polygon(host.outline).contains(Point(at[0] + n[0] * 5, at[1] + n[1] * 5)):
+        n = (-n[0], -n[1])  # point away from the host room, towards the other one
+    step, half = wall + ON_WALL_TOLERANCE, width / 2
+    seg = LineString([(at[0] - u[0] * half + n[0] * step, at[1] - u[1] * half + n[1] * step),
+                      (at[0] + u[0] * half + n[0] * step, at[1] + u[1] * half + n[1] * step)])
+    room = Polygon(other.outline)
+    if seg.length - seg.intersection(room.buffer(ON_WALL_TOLERANCE)).length > 1:
+        beyond = seg.length - seg.intersection(room).length
+        r.add(f"{field}.at", f"{beyond:.0f} mm of the {width} mm opening leads past the end of "
+              f"the wall of room {other.id!r}", "move the door along the wall or make it narrower")
+
+
 def _read_doors(r: _Reader, data: dict, rooms: dict[str, Room]) -> list[Door]:
     doors = []
     for f, raw in _array(r, data, "doors"):
@@ -276,6 +297,7 @@ def _read_doors(r: _Reader, data: dict, rooms: dict[str, Room]) -> list[Door]:
                   f"only hinged doors swing; this door's leaf is {leaf_s!r}")
         if at is None or width is None or did is None or leaf is None:
             continue
+        before = len(r.problems)
         _on_wall(r, rooms[a], at, width, f)
         if b != OUTSIDE:
             _, dist = nearest_edge(rooms[b].outline, at)
@@ -283,6 +305,8 @@ def _read_doors(r: _Reader, data: dict, rooms: dict[str, Room]) -> list[Door]:
                 r.add(f"{f}.at", f"({at[0]}, {at[1]}) is {dist:.0f} mm from the nearest wall of "
                       f"room {b!r}; a door joins rooms on either side of one wall",
                       f"walls up to {MAX_WALL_THICKNESS} mm thick are allowed")
+            elif len(r.problems) == before:
+                _reaches_other_room(r, rooms[a], rooms[b], at, width, dist, f)
         doors.append(Door(did, (a, b), at, width, leaf,
                           swings if leaf == Leaf.HINGED else None,
                           hinge if leaf == Leaf.HINGED else None))

@@ -170,6 +170,21 @@ def test_door_too_far_from_the_other_room() -> None:
     assert "700 mm from the nearest wall of room 'b'" in got["doors[1].at"]
 
 
+def test_door_leading_partly_into_a_wall_beyond_the_other_room() -> None:
+    data = _base()
+    data["rooms"][1]["outline"] = [[4000, 0], [7000, 0], [7000, 1700], [4000, 1700]]
+    data["windows"][0]["at"] = [5500, 1700]
+    # the opening runs y 1100..1900 and room b ends at y 1700: 200 mm too far, by hand
+    got = _problems(data)
+    assert "200 mm of the 800 mm opening leads past the end of the wall of room 'b'" in got["doors[1].at"]
+
+
+def test_door_across_a_wall_gap_is_fine() -> None:
+    data = _base()
+    data["rooms"][1]["outline"] = [[4100, 0], [7000, 0], [7000, 3000], [4100, 3000]]
+    assert loads_plan(tomli_w.dumps(data)).doors[1].rooms == ("a", "b")
+
+
 def test_unknown_room_ids() -> None:
     data = _base()
     data["furniture"][0]["room"] = "kitchen"
