@@ -180,3 +180,16 @@ def test_marks_at_one_point_are_set_side_by_side() -> None:
     assert len(centres) == 3 and len({cy for _, cy in centres}) == 1
     xs = sorted(cx for cx, _ in centres)
     assert all(b - a > 0 for a, b in zip(xs, xs[1:], strict=False))
+
+
+def test_text_is_escaped_and_width_is_honoured() -> None:
+    plan = read_plan(Path(__file__).parent.parent / "plans" / "studio.toml")
+    odd = replace(plan, name='Flat <3> & "garden"', client="A & B")
+    small = ET.fromstring(draw_svg(odd, rules_for(plan), marks=[Mark("note", "x < y & z", None, ())],
+                                   width_px=450))
+    big = _svg(odd)
+    text = ET.tostring(small, encoding="unicode")
+    assert 'Flat &lt;3&gt; &amp; "garden"' in text and "x &lt; y &amp; z" in text
+    assert small.get("width") == "450" and big.get("width") == "900"
+    # the same drawing in user units (mm); only the pixel size changes
+    assert _viewbox(small)[2] == _viewbox(big)[2]
