@@ -61,6 +61,7 @@ __all__ = [
     "TOUCH_MM2",
     "WALL_SHARE",
     "WIDTH_STEP",
+    "WIDTH_TOL",
     "RASTER_CELL",
     "Finding",
     "Audit",
@@ -88,6 +89,9 @@ TOUCH_MM2 = 1.0
 WALL_SHARE = 0.8
 #: Precision (mm) of the widest-route search.
 WIDTH_STEP = 5.0
+#: A passage this much narrower (mm) than asked still counts as wide enough, so that a hall
+#: exactly as wide as the route passes (its shrunk floor would otherwise be a bare line).
+WIDTH_TOL = 0.5
 #: Raster cell (mm) for the square and T-shaped turning-space tests.
 RASTER_CELL = 10.0
 #: Segments per quarter circle in negative buffers.
@@ -650,6 +654,11 @@ class _Reach:
                                                                  target.depth))
 
 
+def _erosion(width: float) -> float:
+    """How far the floor is shrunk for a route ``width`` wide: half of it, less the slack."""
+    return max(width - WIDTH_TOL, 0.0) / 2
+
+
 def _find(parent: list[int], i: int) -> int:
     while parent[i] != i:
         parent[i] = parent[parent[i]]
@@ -691,7 +700,8 @@ def _reach(ctx: _Ctx, width: float, floors: dict[str, BaseGeometry] | None = Non
         if floors is not None:
             shrunk = floors[rid]
         else:
-            shrunk = free.buffer(-r, quad_segs=_QUAD_SEGS) if r > 0 else free
+            e = _erosion(width)
+            shrunk = free.buffer(-e, quad_segs=_QUAD_SEGS) if e > 0 else free
         comps += [(rid, p) for p in _polys(shrunk)]
     parent = list(range(len(comps)))
     state = _Reach(width, comps, parent, set(), {})
@@ -835,7 +845,7 @@ def _pinch_floors(ctx: _Ctx, width: float, pinch: float, length: float
     across than along (and when it is not, both sides exceed a pinch length no longer than
     the pinch width). Returns the floors and the longest stretch kept.
     """
-    R, p = width / 2, pinch / 2
+    R, p = _erosion(width), _erosion(pinch)
     floors: dict[str, BaseGeometry] = {}
     longest = 0.0
     for rid, free in ctx.free.items():
@@ -855,7 +865,10 @@ def _pinch_floors(ctx: _Ctx, width: float, pinch: float, length: float
                 drop.append(n)
             else:
                 longest = max(longest, ln)
-        floors[rid] = narrow_ok.difference(unary_union(drop)) if drop else narrow_ok
+        # grown a hair so that no zero-width sliver along a removed stretch's edge joins the
+        # two sides again
+        floors[rid] = (narrow_ok.difference(unary_union(drop).buffer(WIDTH_TOL / 10))
+                       if drop else narrow_ok)
     return floors, longest
 
 
