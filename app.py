@@ -479,13 +479,13 @@ def _candidate(i: int, cand: Any, a: dict[str, Any]) -> None:
     row = a["row"]
     st.markdown(f"#### Arrangement {i + 1}")
     _show_svg(a["svg"])
-    m1, m2, m3 = st.columns(3)
+    m1, m2 = st.columns(2)
     m1.metric("Rules failed", row.text("rules_failed"))
     m2.metric("Walking a day", row.text("walking"))
-    m3.metric("Narrowest route", row.text("narrowest"))
-    st.caption(f"Turning spaces: {row.text('turning')} · free floor {row.text('free_floor')} · "
-               f"preferences met {row.text('preferences')} · score {cand.objective:g}"
-               + (" (best possible)" if cand.optimal else ""))
+    m1.metric("Narrowest route", row.text("narrowest"))
+    m2.metric("Turning spaces", row.text("turning"))
+    st.caption(f"Free floor {row.text('free_floor')} · preferences met {row.text('preferences')}"
+               f" · solver score {cand.objective:g}" + (" (best possible)" if cand.optimal else ""))
     with st.expander("Rule findings"):
         st.dataframe(page.findings_rows(row.audit.findings), hide_index=True)
     with st.expander("Daily routes"):

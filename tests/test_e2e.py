@@ -21,11 +21,13 @@ from pathlib import Path
 import pytest
 
 from roomfit import page
+from roomfit.planfile import read_plan
 
 ROOT = Path(__file__).resolve().parent.parent
 CHROMIUM = Path("/usr/bin/chromium")
 CHROMIUM_ARGS = ["--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run",
                  "--disable-background-networking", "--disable-component-update", "--disable-sync"]
+SAMPLE = "ground-floor-wheelchair.toml"
 SERVER_START_S = 60
 SOLVE_WAIT_S = 180
 
@@ -106,7 +108,7 @@ def test_solve_a_sample_in_a_real_browser(server: str, tmp_path: Path) -> None:
                                                          else shutil.which("chromium")),
                                      args=CHROMIUM_ARGS, timeout=60_000)
         try:
-            tab = browser.new_page(viewport={"width": 1600, "height": 1300})
+            tab = browser.new_page(viewport={"width": 1600, "height": 2000})
             tab.set_default_timeout(60_000)
             expect.set_options(timeout=60_000)  # the first run imports the solver: seconds
             tab.goto(server, wait_until="domcontentloaded")
@@ -116,16 +118,24 @@ def test_solve_a_sample_in_a_real_browser(server: str, tmp_path: Path) -> None:
             _settle(tab)
             tab.screenshot(path=str(tmp_path / "opened.png"), full_page=True)
 
+            # open the wheelchair user's flat, a sample the solver furnishes in seconds
+            sidebar = tab.get_by_test_id("stSidebar")
+            sidebar.get_by_test_id("stSelectbox").click()
+            tab.get_by_role("option", name=SAMPLE).click()
+            sidebar.get_by_role("button", name="Open this sample").click()
+            expect(tab.get_by_text(read_plan(ROOT / "plans" / SAMPLE).name).first).to_be_visible()
+            _settle(tab)
+
             tab.get_by_role("tab", name="Arrangements").click()
             tab.get_by_role("button", name="Find arrangements").click()
-            first = tab.get_by_text("Arrangement 1", exact=True)
+            first = tab.get_by_role("heading", name="Arrangement 1", exact=True)
             try:
                 expect(first).to_be_visible(timeout=SOLVE_WAIT_S * 1000)
             except AssertionError:
                 tab.screenshot(path=str(tmp_path / "no-candidates.png"), full_page=True)
                 raise
             _settle(tab)
-            expect(tab.get_by_text("Arrangement 2", exact=True)).to_be_visible()
+            expect(tab.get_by_role("heading", name="Arrangement 2", exact=True)).to_be_visible()
             panel = tab.get_by_role("tabpanel", name="Arrangements")
             assert panel.locator(".rf-drawing svg").count() >= 2
             expect(panel.get_by_text("Caution: these results are advisory").first).to_be_visible()
