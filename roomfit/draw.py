@@ -186,8 +186,7 @@ def _through_wall(mass: BaseGeometry, at: tuple[float, float], out: tuple[float,
     hit = ray.intersection(mass.buffer(1))
     parts = [hit] if isinstance(hit, LineString) else list(getattr(hit, "geoms", []))
     for seg in parts:
-        if isinstance(seg, LineString) and not seg.is_empty and seg.distance(
-                LineString([at, at])) < 2:
+        if isinstance(seg, LineString) and not seg.is_empty and seg.distance(Point(at)) < 2:
             return max(seg.length - 1, 0.0)
     return 0.0
 
@@ -461,11 +460,12 @@ def _legend_lines(marks: Sequence[Mark], paths: Sequence[Path], missing: list[st
         for k, line in enumerate(_wrap(m.label, width_px - 60, 10)):
             rows.append((str(i) if k == 0 else "", line, colour))
     for p in paths:
-        rows.append(("—", f"{p.label} ({'night, ' if p.night else ''}"
-                     f"{LineString(p.points).length / 1000:.1f} m)" if len(p.points) > 1
-                     else p.label, STYLE["path.night"] if p.night else STYLE["path"]))
+        colour = STYLE["path.night"] if p.night else STYLE["path"]
+        night = "night, " if p.night else ""
+        length = LineString(p.points).length / 1000 if len(p.points) > 1 else 0.0
+        rows.append(("—", f"{p.label} ({night}{length:.1f} m)", colour))
     if missing:
-        for line in (_wrap("Not placed: " + ", ".join(missing), width_px - 60, 10)):
+        for line in _wrap("Not placed: " + ", ".join(missing), width_px - 60, 10):
             rows.append(("", line, STYLE["faint"]))
     return rows
 
