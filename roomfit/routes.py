@@ -81,6 +81,7 @@ WIDTH_CAP_MM = 3_000
 TURN_DEGREES = 30
 
 _TOL = 0.5          # mm: segments within this of the walkway count as inside it
+_EXACT = 0.05       # mm: a gap exactly as wide as the body passes (shrink by half less this)
 _SPINE = 1.0        # mm: half-width of the spine through a doorway narrower than the body
 _CHORD_STEP = 5     # degrees between chord directions when measuring width
 _MERGE = 5.0        # mm: path points closer than this are merged before counting turns
@@ -277,7 +278,7 @@ def _build_base(plan: Plan, rules: RuleSet) -> _Base:
 def _build_space(base: _Base, width: float) -> _Space:
     """The walkway for body ``width``: rooms shrunk by half of it, joined through doorways."""
     r = width / 2
-    walk_parts = [g.buffer(-r, join_style="mitre") for g in base.room_free.values()]
+    walk_parts = [g.buffer(_EXACT - r, join_style="mitre") for g in base.room_free.values()]
     for d in base.doors:
         half = d.h - r if d.h - r > _SPINE else _SPINE
         back = 1.0 if d.outside else d.g + r + 1
