@@ -317,15 +317,14 @@ def _inward(poly: Polygon, at: tuple[float, float], u: tuple[float, float]) -> t
 def _fit_label(label: str, short: str, w: float, h: float, upp: float) -> tuple[str, float, bool]:
     """Text, size (px) and whether to run it vertically, so that it fits a w x h box (mm).
 
-    Tries the label, then ``short`` (the piece id), along the longer side, 9 px down to 5 px.
+    Tries the label from 9 px down to 6 px, then ``short`` (the id) down to 5 px, along the
+    longer side.
     """
     vertical = h > 1.3 * w
     along, across = (h, w) if vertical else (w, h)
-    for size in (9.0, 8.0, 7.0, 6.0, 5.0):
-        if size * upp * 1.3 > across:
-            continue
-        for text in (label, short):
-            if len(text) * size * 0.56 * upp <= along * 0.92:
+    for text, sizes in ((label, (9.0, 8.0, 7.0, 6.0)), (short, (9.0, 8.0, 7.0, 6.0, 5.0))):
+        for size in sizes:
+            if size * upp * 1.3 <= across and len(text) * size * 0.56 * upp <= along * 0.92:
                 return text, size, vertical
     return short, 5.0, vertical
 
