@@ -96,8 +96,9 @@ WIDTH_TOL = 0.5
 RASTER_CELL = 10.0
 #: Segments per quarter circle in negative buffers.
 _QUAD_SEGS = 8
-#: ... and in the narrow-stretch measure, where a coarse arc would shorten stretches by
-#: several mm (a chord cuts the corner an arc only touches).
+#: ... and in the narrow-stretch measure when a stretch is within 25 mm of the allowed
+#: length, where a coarse arc would shorten it by up to ~15 mm (a chord cuts the corner an
+#: arc only touches).
 _PINCH_SEGS = 64
 
 
@@ -545,8 +546,11 @@ def turning_space(free: BaseGeometry, size: float, shape: str,
             return TurningResult(True, "circle", max(diam, size), centre, _sample(pts),
                                  size / 2 - TOUCH_MM)
         diam = min(diam, size - TOUCH_MM)
-    if shape == "circle" or diam + 2 * TOUCH_MM < (size if shape == "square" else 0.6 * size):
-        # a square of side D holds a circle of diameter D, the T's bar one of 0.6 D
+    bx0, by0, bx1, by1 = floor.bounds
+    if (shape == "circle" or diam + 2 * TOUCH_MM < (size if shape == "square" else 0.6 * size)
+            or min(bx1 - bx0, by1 - by0) < size - TOUCH_MM):
+        # a square of side D holds a circle of diameter D, the T's bar one of 0.6 D, and both
+        # need a floor at least D across each way
         return TurningResult(False, "", diam, centre, (), 0.0)
     if shape == "square" and diam >= size * math.sqrt(2):
         region = floor.buffer(-size * math.sqrt(2) / 2, quad_segs=_QUAD_SEGS)
@@ -849,27 +853,40 @@ def _pinch_floors(ctx: _Ctx, width: float, pinch: float, length: float
     floors: dict[str, BaseGeometry] = {}
     longest = 0.0
     for rid, free in ctx.free.items():
-        narrow_ok = free.buffer(-p, quad_segs=_PINCH_SEGS)
-        wide = free.buffer(-R, quad_segs=_PINCH_SEGS)
-        swept = wide.buffer(R, quad_segs=_PINCH_SEGS)
-        grown = wide.buffer(R - p, quad_segs=_PINCH_SEGS)
-        drop: list[BaseGeometry] = []
-        for n in _polys(narrow_ok.difference(grown)):
-            unswept = n.buffer(p, quad_segs=_PINCH_SEGS).intersection(free).difference(swept)
-            if unswept.is_empty or unswept.area <= TOUCH_MM2:
-                continue
-            rect = unswept.minimum_rotated_rectangle
-            xs = list(rect.exterior.coords)
-            ln = min(math.dist(xs[0], xs[1]), math.dist(xs[1], xs[2]))
-            if ln > length + TOUCH_MM:
-                drop.append(n)
-            else:
-                longest = max(longest, ln)
-        # grown a hair so that no zero-width sliver along a removed stretch's edge joins the
-        # two sides again
-        floors[rid] = (narrow_ok.difference(unary_union(drop).buffer(WIDTH_TOL / 10))
-                       if drop else narrow_ok)
+        floor, drop, kept = _pinch_room(free, R, p, length, _QUAD_SEGS)
+        if any(abs(ln - length) < 25.0 for ln in drop + kept):  # close call: finer arcs
+            floor, drop, kept = _pinch_room(free, R, p, length, _PINCH_SEGS)
+        floors[rid] = floor
+        longest = max([longest, *kept])
     return floors, longest
+
+
+def _pinch_room(free: BaseGeometry, R: float, p: float, length: float, segs: int
+                ) -> tuple[BaseGeometry, list[float], list[float]]:
+    """One room's floor shrunk by ``p`` less its narrow stretches longer than ``length``, and
+    the lengths of the stretches dropped and kept."""
+    narrow_ok = free.buffer(-p, quad_segs=segs)
+    wide = free.buffer(-R, quad_segs=segs)
+    swept = wide.buffer(R, quad_segs=segs)
+    grown = wide.buffer(R - p, quad_segs=segs)
+    drop: list[BaseGeometry] = []
+    dropped: list[float] = []
+    kept: list[float] = []
+    for n in _polys(narrow_ok.difference(grown)):
+        unswept = n.buffer(p, quad_segs=segs).intersection(free).difference(swept)
+        if unswept.is_empty or unswept.area <= TOUCH_MM2:
+            continue
+        xs = list(unswept.minimum_rotated_rectangle.exterior.coords)
+        ln = min(math.dist(xs[0], xs[1]), math.dist(xs[1], xs[2]))
+        if ln > length + TOUCH_MM:
+            drop.append(n)
+            dropped.append(ln)
+        else:
+            kept.append(ln)
+    # grown a hair so that no zero-width sliver along a removed stretch's edge joins the two
+    # sides again
+    floor = narrow_ok.difference(unary_union(drop).buffer(WIDTH_TOL / 10)) if drop else narrow_ok
+    return floor, dropped, kept
 
 
 def _check_routes(ctx: _Ctx, extra: list[_Target], widths: bool = True) -> list[Finding]:
