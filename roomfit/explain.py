@@ -177,7 +177,7 @@ def _smaller(plan: Plan, rules: RuleSet, specs: list[PieceSpec], rooms: list[str
         area = spec.width * spec.depth
         smaller = sorted((t for t in catalog.values() if t.category == spec.category
                           and t.width * t.depth < area), key=lambda t: -t.width * t.depth)
-        for t in smaller[:3]:
+        for t in smaller[:6]:
             if time.monotonic() > deadline:
                 return out
             zones = tuple(z for z in spec.zones if z.side in dict(t.zones))

@@ -56,6 +56,14 @@ STATUSES = ("found", "optimal", "impossible", "timeout")
 _DIFFER_PIECES = 2
 _MOVE = 300
 
+#: CP-SAT deterministic time units granted per second of the time limit. On this kind of
+#: machine one unit takes some 30 to 70 s of wall clock on our models, so the deterministic
+#: limit usually ends a run before the wall clock does and runs repeat exactly.
+_WORK_PER_SECOND = 0.03
+
+#: Share of a group's time the strengthened model gets to find its first layout.
+_STRENGTHENED_SHARE = 0.6
+
 #: Improving solutions of one CP-SAT run audited at most (best first).
 _AUDITS_PER_SOLVE = 4
 
@@ -174,14 +182,18 @@ class _Clock:
         return time.monotonic() - self.start
 
 
-def _params(solver: cp_model.CpSolver, options: SolveOptions, seconds: float) -> None:
+def _params(solver: cp_model.CpSolver, options: SolveOptions, seconds: float, work: float) -> None:
+    """Seed, workers, and two limits: ``work`` in CP-SAT's deterministic time units (fixed by
+    the options, so that the same seed gives the same answer) and ``seconds`` of wall clock
+    (the safety net that keeps the time limit)."""
     p = solver.parameters
     p.num_workers = max(1, options.workers)
     p.random_seed = options.seed
-    p.max_time_in_seconds = max(0.05, seconds)
+    p.max_time_in_seconds = max(0.01, seconds)
     # deterministic parallel search: same seed, same answer
     p.interleave_search = options.workers > 1
-    p.max_deterministic_time = max(0.05, seconds)
+    p.interleave_batch_size = 1
+    p.max_deterministic_time = max(0.001, work)
 
 
 def _audit(plan: Plan, rules: RuleSet):
@@ -230,36 +242,38 @@ class _Search:
         self.geo = {r: room_geometry(plan, rules, plan.room(r), options.grid) for r in rooms}
         self.found: list[_Found] = []
         self.impossible = False
+        self.work_share = 1.0
 
     def _say(self, text: str) -> None:
         if self.progress is not None:
             self.progress(f"[{self.clock.elapsed():6.2f} s] {text}")
 
     def run(self, wanted: int, budget_end: float) -> None:
-        for strengthen in (True, False):
-            if strengthen is False:
-                self.counters["fallback"] = 1
-            outcome = self._loop(strengthen, wanted, budget_end)
-            if self.found or outcome == "time":
-                return
-            if outcome == "infeasible-plain":
-                self.impossible = True
-                return
+        """Strengthened model first (it gets a share of the time to find a first layout),
+        then, if it found none, the plain model with the rest."""
+        first_end = time.monotonic() + _STRENGTHENED_SHARE * max(0.0, budget_end - time.monotonic())
+        self._loop(True, wanted, budget_end, first_end)
+        if self.found:
+            return
+        self.counters["fallback"] = 1
+        if self._loop(False, wanted, budget_end, budget_end) == "infeasible-plain":
+            self.impossible = True
 
-    def _loop(self, strengthen: bool, wanted: int, budget_end: float) -> str:
+    def _loop(self, strengthen: bool, wanted: int, budget_end: float, first_end: float) -> str:
         built = build_model(self.plan, self.rules, self.specs, self.rooms, self.options.grid,
                             strengthen=strengthen, geo=self.geo)
         cut = False
         movable = [pv for pv in built.pieces if not pv.locked]
+        work_total = self.options.time_limit * _WORK_PER_SECOND * self.work_share
         while len(self.found) < wanted:
-            left = budget_end - time.monotonic()
-            if left <= 0.01:
+            left = (budget_end if self.found else first_end) - time.monotonic()
+            if left <= 0.05:
                 return "time"
-            share = left / (wanted - len(self.found))
-            if not self.found:
-                share = max(share, 0.6 * left)
+            # the first layout may take all the time it has; later ones share what is left
+            share = left / (wanted - len(self.found)) if self.found else left
+            work = work_total / wanted if self.found else work_total
             solver = cp_model.CpSolver()
-            _params(solver, self.options, share)
+            _params(solver, self.options, share, work)
             seen = _Collect(self, built)
             status = solver.Solve(built.model, seen)
             self.counters["solves"] += 1
@@ -268,7 +282,7 @@ class _Search:
                     return "infeasible-plain"
                 return "infeasible"
             if status not in (cp_model.OPTIMAL, cp_model.FEASIBLE):
-                continue  # nothing within this share; the next round gets what is left
+                return "time"  # a restart would lose the search done so far
             optimal = status == cp_model.OPTIMAL
             bound = solver.BestObjectiveBound() if built.has_objective else 0.0
             accepted = None
@@ -330,7 +344,8 @@ def solve(plan: Plan, rules: RuleSet, options: SolveOptions | None = None,
     clock = _Clock(options.time_limit)
     specs = resolve_pieces(plan, rules)
     counters: dict[str, float] = {"solves": 0, "audits": 0, "cuts": 0, "fallback": 0}
-    groups = components(plan, specs)
+    # small groups first: they finish early and leave their unused time to the larger ones
+    groups = sorted(components(plan, specs), key=lambda g: len(g[1]))
 
     def stats() -> SolveStats:
         return SolveStats(clock.elapsed(), counters.get("first"), int(counters["solves"]),
@@ -347,7 +362,11 @@ def solve(plan: Plan, rules: RuleSet, options: SolveOptions | None = None,
     searches = []
     for i, (rooms, group_specs) in enumerate(groups):
         s = _Search(plan, rules, rooms, group_specs, options, clock, progress, counters)
-        budget_end = time.monotonic() + clock.left() / (len(groups) - i)
+        s.work_share = 1.0 / len(groups)
+        rest = len(groups) - i
+        # twice a fair share, but always something left for the groups still to come
+        budget_end = time.monotonic() + (min(2 * clock.left() / rest, 0.8 * clock.left())
+                                         if rest > 1 else clock.left())
         s.run(options.candidates, budget_end)
         searches.append(s)
         if s.impossible:
