@@ -332,7 +332,8 @@ def _furniture(plan: Plan, rules: RuleSet) -> None:
             p = plan.piece(pid)
             spec = {x.id: x for x in resolve_pieces(plan, rules)}[pid]
             with st.form(_k("edit_form", pid), border=True):
-                st.text_input("Name", value=p.label, key=_k("ed_label", pid))
+                st.text_input("Name", value=p.label, placeholder=spec.label,
+                              key=_k("ed_label", pid))
                 st.multiselect("May stand in", rooms, default=list(p.rooms),
                                format_func=labels.get, key=_k("ed_rooms", pid))
                 c1, c2, c3 = st.columns(3)

@@ -27,7 +27,7 @@ from types import ModuleType
 from typing import Any
 
 from roomfit.catalog import load_catalog, resolve_pieces
-from roomfit.errors import PlanError, Problem, RoomfitError
+from roomfit.errors import PlanError, Problem, RoomfitError, RuleError
 from roomfit.plan import Layout, Piece, Placement, Plan, RuleChoice
 from roomfit.planfile import dumps_plan, loads_plan
 from roomfit.rules import RuleSet, load_ruleset
@@ -223,7 +223,10 @@ def with_rule_choice(plan: Plan, set_id: str, overrides: dict[str, int | str]) -
 
     Raises :class:`~roomfit.errors.RuleError` for an unknown set, rule or bad value.
     """
-    load_ruleset(set_id, overrides)
+    try:
+        load_ruleset(set_id, overrides)
+    except RuleError as e:
+        raise RuleError(e.problems, EDITED_SOURCE) from None
     choice = RuleChoice(set_id, tuple(sorted(overrides.items())))
     return validated(plan.with_rules(choice))
 

@@ -100,7 +100,8 @@ def test_rule_choice_with_override_is_reported_as_overridden() -> None:
     assert rows["route.width"]["mm"] == "1000"
     assert rows["route.width"]["status"] == "overridden for this client"
     assert rows["turning.size"]["mm"] == "1524"  # 2010 ADA §304.3.1: 60 in
-    with pytest.raises(RuleError, match="no rule 'route.nope'"):
+    with pytest.raises(RuleError, match=r"plan edited on the page: rules\.overrides\.route\.nope: "
+                       "rule set 'ada-2010' has no rule 'route.nope'"):
         page.with_rule_choice(plan, "ada-2010", {"route.nope": 5})
 
 
