@@ -74,17 +74,23 @@ class FurnitureType:
     view_max: float = 0.0
     #: Diagonal (mm) of the screen a TV unit carries; 0 when none.
     screen: int = 0
+    #: Length (mm) at the back (head) end of the left and right sides left out of their use
+    #: zones: room for a nightstand beside a bed's head. Common practice: a 455 mm nightstand
+    #: [S6] plus 45 mm play.
+    head_clear: int = 0
 
 
 @dataclass(frozen=True)
 class ZoneReq:
     """A use zone on one ``side`` of a piece: ``depth`` mm out from that side, along its
-    whole length; ``rule`` is the rule id the depth comes from."""
+    whole length less ``inset`` at the back end; ``rule`` is the rule id the depth comes from."""
 
     side: str
     kind: str
     depth: int
     rule: str
+    #: For left and right zones: length (mm) at the piece's back end the zone leaves out.
+    inset: int = 0
 
 
 @dataclass(frozen=True)
@@ -141,6 +147,7 @@ def _bundled_catalog() -> tuple[FurnitureType, ...]:
             view_min=float(raw.get("view_min", 0.0)),
             view_max=float(raw.get("view_max", 0.0)),
             screen=int(raw.get("screen", 0)),
+            head_clear=int(raw.get("head_clear", 0)),
         )
     return tuple(out.values())
 
@@ -238,7 +245,11 @@ def resolve_piece(
                                 "run `roomfit catalog` to list the types, or use type = \"custom\""))
     t = catalog[piece.type]
     zones = _long_side_zones(list(t.zones), piece.access)
-    reqs = tuple(ZoneReq(side, kind, rules.mm(f"zone.{kind}"), f"zone.{kind}") for side, kind in zones)
+    reqs = tuple(
+        ZoneReq(side, kind, rules.mm(f"zone.{kind}"), f"zone.{kind}",
+                t.head_clear if side in ("left", "right") else 0)
+        for side, kind in zones
+    )
     return PieceSpec(
         id=piece.id,
         label=piece.label or t.label,

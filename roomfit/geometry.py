@@ -108,17 +108,17 @@ def footprint(spec: PieceSpec, placement: Placement) -> Polygon:
 
 
 def zone_polygon(spec: PieceSpec, placement: Placement, zone: ZoneReq) -> Polygon:
-    """The use zone on ``zone.side``: ``zone.depth`` out from that side, along all of it."""
+    """The use zone on ``zone.side``: ``zone.depth`` out from that side, along all of it but
+    ``zone.inset`` at the piece's back end (a bed's head, where nightstands stand)."""
     x0, y0, x1, y1 = footprint_box(spec, placement)
     dx, dy = side_direction(zone.side, placement.rotation)
-    t = zone.depth
-    if dx == 1:
-        return box(x1, y0, x1 + t, y1)
-    if dx == -1:
-        return box(x0 - t, y0, x0, y1)
-    if dy == 1:
-        return box(x0, y1, x1, y1 + t)
-    return box(x0, y0 - t, x1, y0)
+    bx, by = side_direction("back", placement.rotation)
+    t, cut = zone.depth, zone.inset
+    if dx != 0:  # zone beside a vertical side: trim along y at the back end
+        ya, yb = (y0 + cut, y1) if by == -1 else (y0, y1 - cut) if by == 1 else (y0, y1)
+        return box(x1, ya, x1 + t, yb) if dx == 1 else box(x0 - t, ya, x0, yb)
+    xa, xb = (x0 + cut, x1) if bx == -1 else (x0, x1 - cut) if bx == 1 else (x0, x1)
+    return box(xa, y1, xb, y1 + t) if dy == 1 else box(xa, y0 - t, xb, y0)
 
 
 def use_zones(spec: PieceSpec, placement: Placement) -> list[tuple[ZoneReq, Polygon]]:

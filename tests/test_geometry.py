@@ -184,3 +184,33 @@ def test_window_band_on_an_angled_wall() -> None:
     # a 1000 x 300 rectangle square to the wall, wholly inside the room
     assert band.area == pytest.approx(1000 * 300, rel=1e-9)
     assert room_polygon(room).buffer(1e-6).contains(band)
+
+
+def test_bed_side_zones_leave_the_head_end_free_in_every_rotation():
+    # Worked example: a 1700 x 2100 bed frame with 610 mm side zones that leave out the
+    # 500 mm at the head (head_clear, common practice) -> each side zone is 610 x 1600 and
+    # never touches the 500 mm strip along the head end, whatever the rotation.
+    from roomfit.catalog import load_catalog, resolve_piece
+    from roomfit.geometry import footprint, side_direction, use_zones
+    from roomfit.plan import Piece, Placement
+    from roomfit.rules import load_ruleset
+
+    spec = resolve_piece(Piece("b", "bed-double-160", ("r",)), load_ruleset("everyday"),
+                         load_catalog())
+    for rot in (0, 90, 180, 270):
+        pl = Placement(1000, 1000, rot, "r")
+        fp = footprint(spec, pl)
+        bx, by = side_direction("back", rot)
+        x0, y0, x1, y1 = fp.bounds
+        # the head strip: 500 mm deep at the back end, widened sideways past both zones
+        hx0 = x0 - 1000 if bx == 0 else (x0 if bx == -1 else x1 - 500)
+        hx1 = x1 + 1000 if bx == 0 else (x0 + 500 if bx == -1 else x1)
+        hy0 = y0 - 1000 if by == 0 else (y0 if by == -1 else y1 - 500)
+        hy1 = y1 + 1000 if by == 0 else (y0 + 500 if by == -1 else y1)
+        strip = box(hx0, hy0, hx1, hy1)
+        sides = [(z, poly) for z, poly in use_zones(spec, pl) if z.side in ("left", "right")]
+        assert len(sides) == 2
+        for z, poly in sides:
+            assert z.inset == 500
+            assert poly.area == pytest.approx(z.depth * (2100 - 500))
+            assert poly.intersection(strip).area == pytest.approx(0)
