@@ -125,7 +125,8 @@ def _describe(plan: Plan, specs: dict[str, PieceSpec], rules: RuleSet, gid: str)
 def explain(plan: Plan, rules: RuleSet, specs: list[PieceSpec], rooms: list[str], options,
             deadline: float) -> Explanation:
     """Explain why ``specs`` cannot be placed in ``rooms`` (the plain model is infeasible)."""
-    deadline = max(deadline, time.monotonic() + 3.0)  # explaining is worth a few seconds
+    # explaining is worth a few seconds even when the search used up its time
+    deadline = max(deadline, time.monotonic() + min(3.0, options.time_limit))
     built = build_model(plan, rules, specs, rooms, options.grid, strengthen=False, assume=True,
                         objective=False)
     by_id = {s.id: s for s in specs}

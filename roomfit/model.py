@@ -279,6 +279,7 @@ class PieceVars:
     alts: dict[tuple[str, int], cp_model.IntVar]
     locked: bool
     walls: dict[tuple[str, int], list[cp_model.IntVar]] = field(default_factory=dict)
+    _ends: tuple[cp_model.IntVar, cp_model.IntVar] | None = None
 
     def size(self, rot: int) -> tuple[int, int]:
         return (self.spec.width, self.spec.depth) if rot in (0, 180) else (self.spec.depth, self.spec.width)
@@ -288,6 +289,16 @@ class PieceVars:
 
     def depth_expr(self) -> cp_model.LinearExpr:
         return sum(lit * self.size(rot)[1] for (_, rot), lit in self.alts.items())
+
+    def ends(self, m: cp_model.CpModel) -> tuple[cp_model.IntVar, cp_model.IntVar]:
+        """Variables for the footprint's right and top edges (made once, then reused)."""
+        if self._ends is None:
+            xe = m.NewIntVar(-10_000_000, 10_000_000, f"xe_{self.spec.id}")
+            ye = m.NewIntVar(-10_000_000, 10_000_000, f"ye_{self.spec.id}")
+            m.Add(xe == self.x + self.width_expr())
+            m.Add(ye == self.y + self.depth_expr())
+            self._ends = (xe, ye)
+        return self._ends
 
     def in_room(self, room: str) -> cp_model.LinearExpr:
         return sum(lit for (r, _), lit in self.alts.items() if r == room)
@@ -587,43 +598,46 @@ def _gap_rules(m: cp_model.CpModel, pieces: list[PieceVars], g: RoomGeo, route: 
     here = [pv for pv in pieces if any(k[0] == r for k in pv.alts)]
     near = grid
     for i, p in enumerate(here):
-        pw, pd = p.width_expr(), p.depth_expr()
+        pxe, pye = p.ends(m)
         for q in here[i + 1:]:
-            qw, qd = q.width_expr(), q.depth_expr()
+            qxe, qye = q.ends(m)
             opts = [m.NewBoolVar("") for _ in range(5)]
-            m.Add(q.x + qw + route <= p.x).OnlyEnforceIf(opts[0])
-            m.Add(p.x + pw + route <= q.x).OnlyEnforceIf(opts[1])
-            m.Add(q.y + qd + route <= p.y).OnlyEnforceIf(opts[2])
-            m.Add(p.y + pd + route <= q.y).OnlyEnforceIf(opts[3])
-            m.Add(q.x <= p.x + pw + near).OnlyEnforceIf(opts[4])
-            m.Add(p.x <= q.x + qw + near).OnlyEnforceIf(opts[4])
-            m.Add(q.y <= p.y + pd + near).OnlyEnforceIf(opts[4])
-            m.Add(p.y <= q.y + qd + near).OnlyEnforceIf(opts[4])
-            both = [p.in_room(r), q.in_room(r)]
-            enf = []
-            for e in both:
-                b = m.NewBoolVar("")
-                m.Add(e >= 1).OnlyEnforceIf(b)
-                m.Add(e == 0).OnlyEnforceIf(b.Not())
-                enf.append(b)
+            m.Add(qxe + route <= p.x).OnlyEnforceIf(opts[0])
+            m.Add(pxe + route <= q.x).OnlyEnforceIf(opts[1])
+            m.Add(qye + route <= p.y).OnlyEnforceIf(opts[2])
+            m.Add(pye + route <= q.y).OnlyEnforceIf(opts[3])
+            m.Add(q.x <= pxe + near).OnlyEnforceIf(opts[4])
+            m.Add(p.x <= qxe + near).OnlyEnforceIf(opts[4])
+            m.Add(q.y <= pye + near).OnlyEnforceIf(opts[4])
+            m.Add(p.y <= qye + near).OnlyEnforceIf(opts[4])
+            enf = [_in_room_lit(m, p, r), _in_room_lit(m, q, r)]
             m.AddBoolOr(opts).OnlyEnforceIf(enf)
         bx0, by0, bx1, by1 = g.bbox
-        inr = m.NewBoolVar("")
-        m.Add(p.in_room(r) >= 1).OnlyEnforceIf(inr)
-        m.Add(p.in_room(r) == 0).OnlyEnforceIf(inr.Not())
+        inr = _in_room_lit(m, p, r)
         for rect in (*g.fittings, *g.hard, (bx0 - 1, by0, bx0, by1), (bx1, by0, bx1 + 1, by1),
                      (bx0, by0 - 1, bx1, by0), (bx0, by1, bx1, by1 + 1)):
             x0, y0, x1, y1 = rect
             opts = [m.NewBoolVar("") for _ in range(5)]
             m.Add(x1 + route <= p.x).OnlyEnforceIf(opts[0])
-            m.Add(p.x + pw + route <= x0).OnlyEnforceIf(opts[1])
+            m.Add(pxe + route <= x0).OnlyEnforceIf(opts[1])
             m.Add(y1 + route <= p.y).OnlyEnforceIf(opts[2])
-            m.Add(p.y + pd + route <= y0).OnlyEnforceIf(opts[3])
-            m.Add(x0 <= p.x + pw + near).OnlyEnforceIf(opts[4])
+            m.Add(pye + route <= y0).OnlyEnforceIf(opts[3])
+            m.Add(x0 <= pxe + near).OnlyEnforceIf(opts[4])
             m.Add(p.x <= x1 + near).OnlyEnforceIf(opts[4])
-            m.Add(y0 <= p.y + pd + near).OnlyEnforceIf(opts[4])
+            m.Add(y0 <= pye + near).OnlyEnforceIf(opts[4])
             m.Add(p.y <= y1 + near).OnlyEnforceIf(opts[4])
             m.AddBoolOr(opts).OnlyEnforceIf(inr)
+
+
+def _in_room_lit(m: cp_model.CpModel, pv: PieceVars, room: str) -> cp_model.IntVar:
+    """A literal true exactly when ``pv`` stands in ``room`` (the literal itself for one alt)."""
+    lits = [lit for (r, _), lit in pv.alts.items() if r == room]
+    if len(lits) == len(pv.alts):
+        return m.NewConstant(1)
+    b = m.NewBoolVar("")
+    m.AddBoolOr(lits).OnlyEnforceIf(b)
+    m.AddBoolAnd([lit.Not() for lit in lits]).OnlyEnforceIf(b.Not())
+    return b
 
 
 def _centre2(pv: PieceVars):
