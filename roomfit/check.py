@@ -171,7 +171,14 @@ def _pt(g: BaseGeometry) -> tuple[float, float]:
 
 
 def _fmt(mm: float) -> str:
-    return f"{mm:.0f} mm"
+    # Round to 0.1 mm first, as ``Finding.measured`` is, so a message and its measured value
+    # never read 699 mm and 700 mm for the same width.
+    return f"{round(mm, 1):.0f} mm"
+
+
+def _cm2(mm2: float) -> str:
+    """An area given in mm2 as whole square centimetres (1 cm2 = 100 mm2)."""
+    return f"{mm2 / 100:.0f} cm2"
 
 
 @dataclass(frozen=True)
@@ -243,7 +250,7 @@ def _check_rooms(ctx: _Ctx) -> list[Finding]:
         outside = pc.shape.difference(ctx.rooms[room])
         ok = outside.area <= TOUCH_MM2
         msg = (f"{pid} lies inside {room}" if ok else
-               f"{pid} reaches {outside.area / 1e4:.0f} cm2 beyond the walls of {room}")
+               f"{pid} reaches {_cm2(outside.area)} beyond the walls of {room}")
         out.append(Finding("piece.inside", ok, msg, measured=round(outside.area, 1),
                            required=0.0, pieces=(pid,), room=room,
                            where=_pt(outside if not ok else pc.shape),
@@ -263,7 +270,7 @@ def _check_overlap(ctx: _Ctx) -> list[Finding]:
             if inter.area > TOUCH_MM2:
                 out.append(Finding(
                     "piece.overlap", False,
-                    f"{a} and {b} overlap by {inter.area / 1e4:.0f} cm2",
+                    f"{a} and {b} overlap by {_cm2(inter.area)}",
                     measured=round(inter.area, 1), required=0.0, pieces=(a, b), room=room,
                     where=_pt(inter), outline=_outline(inter)))
     if not out:
@@ -335,7 +342,7 @@ def _check_zones(ctx: _Ctx) -> list[Finding]:
             elif ids:
                 msg = f"the {what} is blocked by {', '.join(ids)}"
             else:
-                msg = f"the {what} reaches through a wall ({through / 1e4:.0f} cm2 outside)"
+                msg = f"the {what} reaches through a wall ({_cm2(through)} outside)"
             out.append(Finding("zone.clear", ok, msg, measured=round(blocked.area + through, 1),
                                required=0.0, source=source, pieces=(pid, *ids),
                                room=pc.placement.room,
@@ -1044,7 +1051,7 @@ _ALWAYS_SHOWN = ("route.width", "turning.space")
 
 def _amount(f: Finding, value: float, inches: bool) -> str:
     if f.rule in AREA_RULES:
-        return f"{value / 1e4:.0f} cm2" if value >= 1e4 else f"{value:.0f} mm2"
+        return _cm2(value) if value >= 100 else f"{value:.0f} mm2"
     text = f"{value:.0f} mm"
     return text + f" ({value / 25.4:.1f} in)" if inches else text
 

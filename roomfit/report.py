@@ -110,7 +110,7 @@ def _routes_table(row: Row) -> str:
 def _amount(rule: str, v: float | None) -> str:
     if v is None or rule not in AREA_RULES:
         return _mm(v)
-    return f"{v / 1e4:.0f} cm&sup2;"
+    return f"{v / 100:.0f} cm&sup2;"  # 1 cm2 = 100 mm2
 
 
 def _finding_row(f) -> str:  # noqa: ANN001 - a check.Finding

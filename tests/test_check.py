@@ -322,6 +322,19 @@ def test_piece_overlapping_fitting_and_wall() -> None:
     assert not inside.ok and inside.measured == pytest.approx(100 * 500)
 
 
+def test_areas_are_shown_in_square_centimetres() -> None:
+    # 1 cm2 = 100 mm2 (SI): a 100 x 500 mm piece beyond the wall is 500 cm2, a 100 x 100 mm
+    # overlap is 100 cm2, in the message and in the summary's measured value
+    rules = load_ruleset("everyday")
+    pieces = (_custom("q", -100, 3000, 400, 3500), _custom("p", 500, 2500, 1500, 3000),
+              _custom("s", 1400, 2900, 2000, 3400))
+    result = audit(_room_plan(pieces), rules)
+    assert "reaches 500 cm2 beyond" in _one(result, "piece.inside", "q ").message
+    assert "overlap by 100 cm2" in result.by_rule("piece.overlap")[0].message
+    text = summary_text(result, rules)
+    assert "measured 500 cm2" in text and "measured 100 cm2" in text
+
+
 def test_zone_violation_names_blocker() -> None:
     # a wardrobe's front zone (everyday 36 in, HUD MAP in front of dresser or closet) with a
     # custom stool standing in it
@@ -343,6 +356,9 @@ def test_zone_through_wall_fails() -> None:
     wardrobe = Piece("wardrobe", "wardrobe-hinged", ("r",), placement=Placement(300, 3000, 90, "r"))
     f = _one(audit(_room_plan((wardrobe,)), rules), "zone.clear", "zone of wardrobe")
     assert not f.ok and "wall" in f.message
+    # everyday storage front 36 in = 914 mm (whole mm), 914 - 300 = 614 mm of it past the
+    # wall along the 1000 mm front: 614 000 mm2 = 6140 cm2
+    assert "(6140 cm2 outside)" in f.message
 
 
 def test_door_swing_blocked() -> None:

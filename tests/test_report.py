@@ -99,3 +99,12 @@ def test_report_command_and_bad_input(tmp_path, capsys):
     assert main(["report", str(tmp_path / "missing.toml"), "-o", str(out)]) == 2
     assert main(["compare", str(PLANS / "studio.toml"), "--rules", "no-such-set"]) == 2
     assert "unknown rule set" in capsys.readouterr().err
+
+
+def test_report_areas_in_square_centimetres():
+    # column-room: the bed's 1000 mm foot zone (UK M4(3)) runs y 2900..3900 over x 2650..4350;
+    # the 400 x 400 mm column at x 3300..3700, y 2800..3200 covers 400 x 300 mm of it:
+    # 120 000 mm2 = 1200 cm2 (1 cm2 = 100 mm2)
+    plan = read_plan(Path(__file__).parent / "plans_unseen" / "column-room.toml")
+    html = build_report(compare([plan], None), caution=CAUTION, date=dt.date(2026, 3, 14))
+    assert "<td>1200 cm&sup2;</td>" in html
