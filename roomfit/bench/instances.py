@@ -4,7 +4,8 @@ A generated flat is a row of rooms standing on the line y = 0, each joined to th
 900 mm hinged door near the floor line and the first one to the outside by the entrance in
 its south wall. A room is a rectangle, an L (its north-east corner cut out) or has one angled
 wall (its north-east corner cut off on the diagonal). Each room gets a window in its north
-wall and furniture chosen by its use (living, bedroom, kitchen, study).
+wall and furniture chosen by its use (living, bedroom, kitchen, study). The daily routine
+walks from the entrance to the first piece of each room and between neighbouring rooms.
 
 Room sizes follow from the floor the furniture needs: the footprints plus their use zones
 (depths from the rule set), the door approach floor and, where the rule set asks for one, a
@@ -30,7 +31,7 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from roomfit.catalog import load_catalog, resolve_pieces
-from roomfit.plan import OUTSIDE, Door, Leaf, Piece, Plan, Room, RuleChoice, Window
+from roomfit.plan import OUTSIDE, Door, Leaf, Piece, Plan, Room, RuleChoice, Trip, Window
 from roomfit.planfile import read_plan
 from roomfit.rules import RuleSet, load_ruleset, ruleset_ids
 
@@ -220,6 +221,16 @@ def _pieces_for(kinds: list[list[object]], room_ids: list[str]) -> list[Piece]:
     return pieces
 
 
+def _routines(pieces: list[Piece], room_ids: list[str]) -> tuple[Trip, ...]:
+    """Daily trips (invented, common-practice counts): from the entrance to the first piece of
+    each room twice a day, and between the first pieces of neighbouring rooms once a day."""
+    anchors = [next(p.id for p in pieces if p.rooms[0] == rid) for rid in room_ids
+               if any(p.rooms[0] == rid for p in pieces)]
+    trips = [Trip("entrance", a, 2.0, f"Entrance to {a}") for a in anchors]
+    trips += [Trip(a, b, 1.0, f"{a} to {b}") for a, b in zip(anchors, anchors[1:], strict=False)]
+    return tuple(trips)
+
+
 def generate(spec: InstanceSpec) -> Plan:
     """The plan for ``spec``; deterministic for a given spec (and bundled catalogue)."""
     if not 1 <= spec.rooms <= 8:
@@ -279,6 +290,7 @@ def generate(spec: InstanceSpec) -> Plan:
         windows.append(Window(f"w-{r.id}", r.id, (nx0 + span // 2, ny), width, 900))
     return Plan(
         name=f"Benchmark flat {spec.name}",
+        routines=_routines(pieces, room_ids),
         rooms=tuple(rooms),
         doors=tuple(doors),
         windows=tuple(windows),
