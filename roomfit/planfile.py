@@ -251,6 +251,7 @@ def _reaches_other_room(r: _Reader, host: Room, other: Room, at: tuple[int, int]
 
 def _read_doors(r: _Reader, data: dict, rooms: dict[str, Room]) -> list[Door]:
     doors = []
+    names_outside = False  # a door leads outside, even one with a problem of its own
     for f, raw in _array(r, data, "doors"):
         t = r.table(raw, f, _DOOR_KEYS, {"id", "rooms", "at", "width"})
         if t is None:
@@ -276,6 +277,7 @@ def _read_doors(r: _Reader, data: dict, rooms: dict[str, Room]) -> list[Door]:
         if not ok_pair:
             continue
         a, b = pair
+        names_outside = names_outside or OUTSIDE in pair
         if a not in rooms:
             r.add(f"{f}.rooms[0]", f"unknown room {a!r}", _known(rooms))
             continue
@@ -310,7 +312,7 @@ def _read_doors(r: _Reader, data: dict, rooms: dict[str, Room]) -> list[Door]:
         doors.append(Door(did, (a, b), at, width, leaf,
                           swings if leaf == Leaf.HINGED else None,
                           hinge if leaf == Leaf.HINGED else None))
-    if rooms and doors and not any(d.is_entrance for d in doors):
+    if rooms and doors and not names_outside:
         r.add("doors", "no entrance: no door joins a room to 'outside'",
               'give the flat\'s entrance door rooms = ["<room>", "outside"]')
     return doors

@@ -141,6 +141,16 @@ def test_overlapping_rooms() -> None:
     assert "overlaps room 'a' by 1.500 m2" in got["rooms[1].outline"]
 
 
+def test_entrance_with_a_bad_width_is_not_also_missing() -> None:
+    # one mistake, one problem: the entrance's bad width must not also read "no entrance"
+    data = _base()
+    data["doors"][0]["width"] = "3 ft 6 inch"
+    assert set(_problems(data)) == {"doors[0].width"}
+    data["doors"][0]["rooms"] = ["a", "outsid"]
+    got = _problems(data)
+    assert "doors[0].rooms[1]" in got and "no entrance" in got["doors"]
+
+
 def test_door_off_its_wall_says_how_far() -> None:
     data = _base()
     data["doors"][1]["at"] = [3700, 1500]
