@@ -17,15 +17,19 @@ The search first runs a *strengthened* model (pairwise gap rules and door walkwa
 it falls back to the plain model. "Impossible" is only said of the plain model, never of the
 strengthened one nor after a cut.
 
-Reproducible: the seed, the worker count and CP-SAT's interleaved (deterministic) parallel
-search with a deterministic time budget give the same candidates for the same inputs; the
-wall-clock limit is a safety net on top.
+Reproducible and bounded: each search runs one CP-SAT worker (on our models one worker finds
+a first layout sooner than two, interleaved or not) under a deterministic work limit fixed by
+the options, so the same seed gives the same candidates whenever that limit or a proof of
+optimality ends each run; the wall-clock limit is the safety net on top. ``workers`` groups
+of rooms are searched side by side, which is where a second core helps.
 """
 
 from __future__ import annotations
 
+import threading
 import time
 from collections.abc import Callable
+from concurrent.futures import ThreadPoolExecutor
 from dataclasses import dataclass, replace
 
 from ortools.sat.python import cp_model
@@ -57,9 +61,9 @@ _DIFFER_PIECES = 2
 _MOVE = 300
 
 #: CP-SAT deterministic time units granted per second of the time limit. On this kind of
-#: machine one unit takes some 30 to 70 s of wall clock on our models, so the deterministic
+#: machine one unit takes some 10 to 20 s of one worker on our models, so the deterministic
 #: limit usually ends a run before the wall clock does and runs repeat exactly.
-_WORK_PER_SECOND = 0.03
+_WORK_PER_SECOND = 0.04
 
 #: Share of a group's time the strengthened model gets to find its first layout.
 _STRENGTHENED_SHARE = 0.6
@@ -71,7 +75,8 @@ _AUDITS_PER_SOLVE = 4
 @dataclass(frozen=True)
 class SolveOptions:
     """How to search: number of candidates, wall-clock limit (s) over all rounds, seed,
-    CP-SAT workers, and the position grid (mm)."""
+    ``workers`` (groups of rooms searched side by side, one CP-SAT worker each), and the grid
+    (mm) for angled walls, door arcs and the turning space."""
 
     candidates: int = 3
     time_limit: float = 20.0
@@ -170,13 +175,38 @@ class _Found:
     optimal: bool
 
 
+class _Counters:
+    """What the search did, counted from several threads at once."""
+
+    def __init__(self) -> None:
+        self._lock = threading.Lock()
+        self.values: dict[str, float] = {"solves": 0, "audits": 0, "cuts": 0, "fallback": 0}
+        self.first: float | None = None
+
+    def add(self, key: str, n: float = 1) -> None:
+        with self._lock:
+            self.values[key] += n
+
+    def valid_at(self, seconds: float) -> None:
+        with self._lock:
+            if self.first is None:
+                self.first = seconds
+
+    def __getitem__(self, key: str) -> float:
+        return self.values[key]
+
+
 class _Clock:
-    def __init__(self, limit: float) -> None:
+    """Wall clock of one solve. ``left()`` is the time left for searching: the limit less a
+    reserve for auditing the combined candidates at the end (``reserve`` seconds)."""
+
+    def __init__(self, limit: float, reserve: float = 0.0) -> None:
         self.start = time.monotonic()
         self.deadline = self.start + limit
+        self.reserve = reserve
 
     def left(self) -> float:
-        return max(0.0, self.deadline - time.monotonic())
+        return max(0.0, self.deadline - self.reserve - time.monotonic())
 
     def elapsed(self) -> float:
         return time.monotonic() - self.start
@@ -187,12 +217,9 @@ def _params(solver: cp_model.CpSolver, options: SolveOptions, seconds: float, wo
     the options, so that the same seed gives the same answer) and ``seconds`` of wall clock
     (the safety net that keeps the time limit)."""
     p = solver.parameters
-    p.num_workers = max(1, options.workers)
+    p.num_workers = 1
     p.random_seed = options.seed
     p.max_time_in_seconds = max(0.01, seconds)
-    # deterministic parallel search: same seed, same answer
-    p.interleave_search = options.workers > 1
-    p.interleave_batch_size = 1
     p.max_deterministic_time = max(0.001, work)
 
 
@@ -209,25 +236,27 @@ def _only(plan: Plan, ids: set[str], where: dict[str, Placement]) -> Plan:
 
 
 class _Collect(cp_model.CpSolverSolutionCallback):
-    """Keeps every improving solution; audits the first one at once when no layout of the
-    search has passed yet (so the time to the first valid layout is known early)."""
+    """Keeps every improving solution; audits them as they come until one passes (at most
+    ``_AUDITS_PER_SOLVE``), so the time to the first valid layout is known early."""
 
     def __init__(self, search: _Search, built: Built) -> None:
         super().__init__()
         self.search, self.built = search, built
         self.solutions: list[tuple[float, dict[str, Placement]]] = []
         self.verdicts: dict[int, object] = {}
+        self.passed = False
 
     def on_solution_callback(self) -> None:
         where = decode(self.built, self)
         obj = self.ObjectiveValue() if self.built.has_objective else 0.0
         self.solutions.append((obj, where))
         counters = self.search.counters
-        if counters.get("first") is None and len(self.solutions) == 1:
+        if not self.passed and len(self.verdicts) < _AUDITS_PER_SOLVE:
             verdict = self.search._judge(where)
+            self.passed = verdict.passed
             self.verdicts[id(where)] = verdict
             if verdict.passed:
-                counters["first"] = self.search.clock.elapsed()
+                counters.valid_at(self.search.clock.elapsed())
 
 
 class _Search:
@@ -235,7 +264,7 @@ class _Search:
 
     def __init__(self, plan: Plan, rules: RuleSet, rooms: list[str], specs: list[PieceSpec],
                  options: SolveOptions, clock: _Clock, progress: Callable[[str], None] | None,
-                 counters: dict[str, float]) -> None:
+                 counters: _Counters) -> None:
         self.plan, self.rules, self.rooms, self.specs = plan, rules, rooms, specs
         self.options, self.clock, self.progress, self.counters = options, clock, progress, counters
         self.ids = {s.id for s in specs}
@@ -255,7 +284,7 @@ class _Search:
         self._loop(True, wanted, budget_end, first_end)
         if self.found:
             return
-        self.counters["fallback"] = 1
+        self.counters.add("fallback")
         if self._loop(False, wanted, budget_end, budget_end) == "infeasible-plain":
             self.impossible = True
 
@@ -276,7 +305,7 @@ class _Search:
             _params(solver, self.options, share, work)
             seen = _Collect(self, built)
             status = solver.Solve(built.model, seen)
-            self.counters["solves"] += 1
+            self.counters.add("solves")
             if status == cp_model.INFEASIBLE:
                 if not strengthen and not cut and not self.found:
                     return "infeasible-plain"
@@ -297,8 +326,7 @@ class _Search:
             if accepted is None:
                 continue
             self.found.append(accepted)
-            if self.counters.get("first") is None:
-                self.counters["first"] = self.clock.elapsed()
+            self.counters.valid_at(self.clock.elapsed())
             self._say(f"rooms {', '.join(self.rooms)}: candidate {len(self.found)} "
                       f"(objective {accepted.objective:g}{', optimal' if accepted.optimal else ''})")
             self._forbid_near(built, movable, accepted.placements)
@@ -306,12 +334,12 @@ class _Search:
         return "done"
 
     def _judge(self, where: dict[str, Placement]):
-        self.counters["audits"] += 1
+        self.counters.add("audits")
         return _audit(_only(self.plan, self.ids, where), self.rules)
 
     def _cut(self, built: Built, movable: list, where: dict[str, Placement], result) -> None:
         """Forbid ``where``: one of the pieces next to a failure must move or turn."""
-        self.counters["cuts"] += 1
+        self.counters.add("cuts")
         names = {pid for f in result.failures for pid in f.pieces} & self.ids
         pvs = [pv for pv in movable if pv.spec.id in names] or movable
         failed = sorted({f.rule for f in result.failures})
@@ -341,14 +369,15 @@ def solve(plan: Plan, rules: RuleSet, options: SolveOptions | None = None,
     ``progress``, when given, receives one line per event (candidate found, cut added).
     """
     options = options or SolveOptions()
-    clock = _Clock(options.time_limit)
+    # the final audits of the combined candidates take some 0.2 s each on the samples
+    clock = _Clock(options.time_limit, min(0.15 * options.time_limit, 0.25 * options.candidates))
     specs = resolve_pieces(plan, rules)
-    counters: dict[str, float] = {"solves": 0, "audits": 0, "cuts": 0, "fallback": 0}
+    counters = _Counters()
     # small groups first: they finish early and leave their unused time to the larger ones
     groups = sorted(components(plan, specs), key=lambda g: len(g[1]))
 
     def stats() -> SolveStats:
-        return SolveStats(clock.elapsed(), counters.get("first"), int(counters["solves"]),
+        return SolveStats(clock.elapsed(), counters.first, int(counters["solves"]),
                           int(counters["audits"]), int(counters["cuts"]), bool(counters["fallback"]),
                           len(groups))
 
@@ -359,31 +388,43 @@ def solve(plan: Plan, rules: RuleSet, options: SolveOptions | None = None,
     if bare is not None:
         return SolveResult("impossible", (), bare, stats())
 
-    searches = []
-    for i, (rooms, group_specs) in enumerate(groups):
+    lanes = max(1, options.workers)
+    lock = threading.Lock()
+    done = [0]
+
+    def run(group: tuple[list[str], list[PieceSpec]]) -> _Search:
+        rooms, group_specs = group
         s = _Search(plan, rules, rooms, group_specs, options, clock, progress, counters)
-        s.work_share = 1.0 / len(groups)
-        rest = len(groups) - i
-        # twice a fair share, but always something left for the groups still to come
-        budget_end = time.monotonic() + (min(2 * clock.left() / rest, 0.8 * clock.left())
-                                         if rest > 1 else clock.left())
-        s.run(options.candidates, budget_end)
-        searches.append(s)
+        with lock:
+            waiting = len(groups) - done[0]
+        # a fair share of the time left among the groups not finished, ``lanes`` at a time
+        share = min(1.0, lanes / waiting)
+        s.work_share = min(1.0, lanes / len(groups))
+        s.run(options.candidates, time.monotonic() + share * clock.left())
+        with lock:
+            done[0] += 1
+        return s
+
+    # groups share no piece and no room: they are searched side by side, one CP-SAT worker
+    # each (one worker also keeps each search deterministic)
+    with ThreadPoolExecutor(max_workers=lanes) as pool:
+        searches = list(pool.map(run, groups))
+    for s, (rooms, group_specs) in zip(searches, groups, strict=True):
         if s.impossible:
             expl = explain(plan, rules, group_specs, rooms, options, clock.deadline)
             return SolveResult("impossible", (), expl, stats())
-        if not s.found:
-            return SolveResult("timeout", (), None, stats())
+    if not all(s.found for s in searches):
+        return SolveResult("timeout", (), None, stats())
 
     candidates = _combine(plan, rules, searches, options.candidates, counters)
     if not candidates:
         return SolveResult("timeout", (), None, stats())
-    status = "optimal" if candidates[0].optimal else "found"
+    status = "optimal" if candidates[0].optimal else "found"  # the best one proven optimal
     return SolveResult(status, tuple(candidates), None, stats())
 
 
 def _combine(plan: Plan, rules: RuleSet, searches: list[_Search], wanted: int,
-             counters: dict[str, float]) -> list[Candidate]:
+             counters: _Counters) -> list[Candidate]:
     """Candidate i takes the i-th layout of every group (the last one where a group has fewer);
     every combined layout is audited once more on the whole plan."""
     out: list[Candidate] = []
@@ -395,20 +436,22 @@ def _combine(plan: Plan, rules: RuleSet, searches: list[_Search], wanted: int,
             where.update(f.placements)
         layout = tuple((p.id, where.get(p.id, p.placement)) for p in plan.furniture
                        if where.get(p.id, p.placement) is not None)
-        counters["audits"] += 1
+        counters.add("audits")
         if not _audit(plan.with_layout(layout), rules).passed:
             continue
         out.append(Candidate(layout, sum(f.objective for f in picks), sum(f.bound for f in picks),
                              all(f.optimal for f in picks), len(out)))
-    return out
+    # best first (a later search may have done better than an earlier one that ran out of time)
+    out.sort(key=lambda c: c.objective)
+    return [replace(c, rank=i) for i, c in enumerate(out)]
 
 
 
-def _bare_faults(plan: Plan, rules: RuleSet, counters: dict[str, float]) -> Explanation | None:
+def _bare_faults(plan: Plan, rules: RuleSet, counters: _Counters) -> Explanation | None:
     """The apartment without its movable furniture already fails the audit: no arrangement
     can pass, so say so (locked pieces stay, they cannot be moved)."""
     kept = tuple(p for p in plan.furniture if p.locked and p.placement is not None)
-    counters["audits"] += 1
+    counters.add("audits")
     result = _audit(replace(plan, furniture=kept), rules)
     if result.passed:
         return None
