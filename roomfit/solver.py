@@ -275,7 +275,7 @@ class _Search:
 
     def _say(self, text: str) -> None:
         if self.progress is not None:
-            self.progress(f"[{self.clock.elapsed():6.2f} s] {text}")
+            self.progress(f"[{self.clock.elapsed():6.2f} s] round {int(self.counters['solves'])}: {text}")
 
     def run(self, wanted: int, budget_end: float) -> None:
         """Strengthened model first (it gets a share of the time to find a first layout),
