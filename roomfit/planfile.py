@@ -588,10 +588,18 @@ def read_plan(path: str | Path) -> Plan:
 
 
 def _out(mm: int, unit: str) -> int | float:
+    """``mm`` in ``unit``: a whole number when exact, else the shortest decimal that reads
+    back as the same millimetre (``5486`` mm is ``215.98`` in, not ``215.98425196850394``)."""
     if unit == "mm":
         return mm
     v = Fraction(mm) / MM_PER[unit]
-    return int(v) if v.denominator == 1 else float(v)
+    if v.denominator == 1:
+        return int(v)
+    for digits in range(1, 7):
+        short = round(float(v), digits)
+        if parse_length(short, unit) == mm:
+            return short
+    return float(v)
 
 
 def _plan_to_dict(plan: Plan) -> dict[str, Any]:

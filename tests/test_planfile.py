@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import copy
 import tomllib
+from dataclasses import replace
 from pathlib import Path
 from typing import Any
 
@@ -121,6 +122,27 @@ def test_plan_in_inches_round_trips(tmp_path: Path) -> None:
     again = loads_plan(text)
     assert again == plan
     assert read_plan(write_plan(plan, tmp_path / "in.toml")) == plan
+
+
+@pytest.mark.parametrize(("unit", "mm", "written"), [
+    # 1 in = 25.4 mm: 5486 mm = 215.984.. in; 216.0 in = 5486.4 mm reads back as 5486
+    ("in", 5486, "216.0"),
+    # 1 mm = 0.03937 in: 0.0 in would read as 0 mm, 0.04 in = 1.016 mm reads as 1
+    ("in", 1, "0.04"),
+    # 1 ft = 304.8 mm: 1000 mm = 3.2808.. ft; 3.281 ft = 1000.05 mm (3.28 ft = 999.7 mm also
+    # reads as 1000, so two decimals suffice)
+    ("ft", 1000, "3.28"),
+    ("cm", 1235, "123.5"),
+])
+def test_lengths_are_written_as_short_decimals(unit: str, mm: int, written: str) -> None:
+    plan = read_plan(Path(__file__).parent / "plans_unseen" / "cm-flat.toml")
+    piece = plan.furniture[0]
+    assert piece.placement is not None
+    moved = replace(piece, placement=replace(piece.placement, x=mm))
+    plan = replace(plan, unit=unit, furniture=(moved, *plan.furniture[1:]))
+    text = dumps_plan(plan)
+    assert f"x = {written}\n" in text
+    assert loads_plan(text) == plan
 
 
 # --- one test per validation problem -------------------------------------------------------
