@@ -528,6 +528,25 @@ def _scale_bar(c: _Canvas, x: float, y: float) -> None:
     c.add("".join(parts))
 
 
+def _extent(plan: Plan, rules: RuleSet, marks: Sequence[Mark],
+            paths: Sequence[Path]) -> tuple[float, float, float, float]:
+    """Bounds (mm) of everything drawn on the plan: the rooms, and also placed pieces, their
+    use zones, marks and paths that reach past the walls (a piece placed partly outside the
+    flat, a zone through a wall), so that nothing is cut off at the drawing's edge."""
+    shapes: list[BaseGeometry] = [room_polygon(r) for r in plan.rooms]
+    specs = {s.id: s for s in resolve_pieces(plan, rules)}
+    for p in plan.furniture:
+        if p.placement is not None and p.id in specs:
+            shapes.append(box(*footprint_box(specs[p.id], p.placement)))
+            shapes += [z for _, z in use_zones(specs[p.id], p.placement)]
+    points = [pt for m in marks for pt in m.outline] + [m.where for m in marks if m.where]
+    points += [pt for path in paths for pt in path.points]
+    minx, miny, maxx, maxy = unary_union(shapes).bounds
+    for x, y in points:
+        minx, miny, maxx, maxy = min(minx, x), min(miny, y), max(maxx, x), max(maxy, y)
+    return minx, miny, maxx, maxy
+
+
 def draw_svg(plan: Plan, rules: RuleSet, marks: Sequence[Mark] = (), paths: Sequence[Path] = (),
              title: str | None = None, width_px: int = 900) -> str:
     """The plan drawn to scale as a standalone SVG document (no XML declaration).
@@ -540,7 +559,7 @@ def draw_svg(plan: Plan, rules: RuleSet, marks: Sequence[Mark] = (), paths: Sequ
     if not plan.rooms:
         raise ValueError("a plan needs at least one room to draw")
     mass = _wall_mass(plan)
-    minx, miny, maxx, maxy = unary_union([room_polygon(r) for r in plan.rooms]).bounds
+    minx, miny, maxx, maxy = _extent(plan, rules, marks, paths)
     minx, miny = minx - EXTERIOR_WALL - _MARGIN_MM, miny - EXTERIOR_WALL - _MARGIN_MM
     maxx, maxy = maxx + EXTERIOR_WALL + _MARGIN_MM, maxy + EXTERIOR_WALL + _MARGIN_MM
     # room for the scale bar and labels in narrow plans

@@ -193,3 +193,29 @@ def test_text_is_escaped_and_width_is_honoured() -> None:
     assert small.get("width") == "450" and big.get("width") == "900"
     # the same drawing in user units (mm); only the pixel size changes
     assert _viewbox(small)[2] == _viewbox(big)[2]
+
+
+def _drawn_points(root: ET.Element) -> list[tuple[float, float]]:
+    """Every polygon vertex and circle centre of the drawing, in SVG user units."""
+    pts: list[tuple[float, float]] = []
+    for e in root.iter(f"{{{NS['s']}}}polygon"):
+        nums = [float(v) for v in re.split(r"[ ,]+", e.get("points", "").strip())]
+        pts += list(zip(nums[::2], nums[1::2], strict=True))
+    for e in root.iter(f"{{{NS['s']}}}circle"):
+        pts.append((float(e.get("cx", "0")), float(e.get("cy", "0"))))
+    return pts
+
+
+def test_pieces_zones_and_marks_past_the_walls_stay_on_the_drawing() -> None:
+    # thick-walls: a single bed placed 100 mm through the bedroom's east wall, its 1500 mm
+    # side zone (DIN 18040-2 level R) running 1500 mm north through the outer wall, and a mark
+    # 3 m beyond the flat: all of it lies inside the viewBox, none is cut off
+    plan = read_plan(Path(__file__).parent / "plans_unseen" / "thick-walls.toml")
+    root = _svg(plan, marks=[Mark("fail", "far away", (9000.0, 12000.0), ())])
+    _, _, w, h = _viewbox(root)
+    pts = _drawn_points(root)
+    assert pts and all(0 <= x <= w and 0 <= y <= h for x, y in pts)
+    # the zone is drawn whole: 1500 mm tall in user units (1 unit = 1 mm)
+    zones = [e for e in root.iter(f"{{{NS['s']}}}polygon") if "use-zone" in e.get("class", "")]
+    ys = [float(v) for z in zones for v in z.get("points", "").replace(",", " ").split()[1::2]]
+    assert max(ys) - min(ys) >= 1500
