@@ -53,7 +53,7 @@ from shapely.ops import nearest_points, unary_union
 from roomfit import geometry as geo
 from roomfit.catalog import PieceSpec, resolve_pieces
 from roomfit.plan import OUTSIDE, Placement, Plan
-from roomfit.rules import RuleSet
+from roomfit.rules import Rule, RuleSet
 
 __all__ = [
     "RULE_IDS",
@@ -168,6 +168,14 @@ def _pt(g: BaseGeometry) -> tuple[float, float]:
     if not g.is_empty and isinstance(g, Polygon) and not g.contains(p):
         p = g.representative_point()
     return (round(p.x, 1), round(p.y, 1))
+
+
+def _source(rule: Rule) -> str:
+    """The rule's source for a finding; when the client's plan overrode the value, says so
+    first (the set's source speaks of the set's own value, not of the client's)."""
+    if not rule.overridden:
+        return rule.source
+    return f"value set by the plan for this client (the rule set's own value: {rule.source})"
 
 
 def _fmt(mm: float) -> str:
@@ -332,7 +340,7 @@ def _check_zones(ctx: _Ctx) -> list[Finding]:
     for pid, pc in ctx.placed.items():
         room = ctx.rooms.get(pc.placement.room)
         for z, zp in geo.use_zones(pc.spec, pc.placement):
-            source = ctx.rules.get(z.rule).source if ctx.rules.has(z.rule) else ""
+            source = _source(ctx.rules.get(z.rule)) if ctx.rules.has(z.rule) else ""
             ids, blocked = _blockers(zp, solid, skip=pid)
             through = zp.difference(room).area if room is not None else 0.0
             ok = not ids and through <= TOUCH_MM2
@@ -371,7 +379,7 @@ def _check_doors(ctx: _Ctx) -> list[Finding]:
         msg = (f"door {d.id} is {d.width} mm wide"
                + ("" if ok else f", narrower than {need.exact_mm:.0f} mm"))
         out.append(Finding("door.width", ok, msg, measured=float(d.width),
-                           required=need.exact_mm, source=need.source, pieces=(d.id,),
+                           required=need.exact_mm, source=_source(need), pieces=(d.id,),
                            room=d.rooms[0], where=_pt(ds.opening)))
         floor = [g for g in [ds.swing, *ds.approach.values()] if g is not None]
         if not floor:
@@ -381,7 +389,7 @@ def _check_doors(ctx: _Ctx) -> list[Finding]:
         ok = not ids
         msg = (f"the swing and approach of door {d.id} are clear" if ok else
                f"the swing or approach of door {d.id} is blocked by {', '.join(ids)}")
-        src = ctx.rules.get("door.approach_swing").source
+        src = _source(ctx.rules.get("door.approach_swing"))
         out.append(Finding("door.swing_clear", ok, msg, measured=round(blocked.area, 1),
                            required=0.0, source=src, pieces=(d.id, *ids), room=d.rooms[0],
                            where=_pt(blocked if ids else ds.opening),
@@ -402,7 +410,7 @@ def _check_windows(ctx: _Ctx) -> list[Finding]:
                f"window {w.id} is blocked by {', '.join(ids)} (taller than its {w.sill} mm sill,"
                f" within {rule.mm} mm)")
         out.append(Finding("window.clear", ok, msg, measured=round(blocked.area, 1),
-                           required=0.0, source=rule.source, pieces=(w.id, *ids), room=w.room,
+                           required=0.0, source=_source(rule), pieces=(w.id, *ids), room=w.room,
                            where=_pt(blocked if ids else band), outline=_outline(band)))
     return out
 
@@ -635,7 +643,7 @@ def _check_turning(ctx: _Ctx) -> tuple[list[Finding], list[_Target]]:
             r = (size if res.fits else res.measured) / 2
             outline = _outline(Point(res.centre).buffer(max(r, 1.0), quad_segs=8))
         out.append(Finding("turning.space", res.fits, msg, measured=res.measured,
-                           required=size, source=size_rule.source, room=room.id,
+                           required=size, source=_source(size_rule), room=room.id,
                            where=res.centre, outline=outline))
     return out, targets
 
@@ -903,7 +911,7 @@ def _check_routes(ctx: _Ctx, extra: list[_Target], widths: bool = True) -> list[
     plength = ctx.rules.get("route.pinch_length").exact_mm
     if not any(ds.door.is_entrance for ds in ctx.doors):
         return [Finding("route.reach", False, "the plan has no entrance door to start from",
-                        required=width, source=rw.source)]
+                        required=width, source=_source(rw))]
     targets = _targets(ctx) + extra
     out: list[Finding] = []
     pinch_state: _Reach | None = None
@@ -926,7 +934,7 @@ def _check_routes(ctx: _Ctx, extra: list[_Target], widths: bool = True) -> list[
         if ok and not note:
             out.append(Finding("route.reach", True,
                                f"{t.label} is reachable from the entrance at {_fmt(width)}",
-                               measured=width, required=width, source=rw.source,
+                               measured=width, required=width, source=_source(rw),
                                pieces=t.ids, room=t.room))
             per_room.setdefault(t.room, []).append((math.inf, None, t.ids, True))
             continue
@@ -936,7 +944,7 @@ def _check_routes(ctx: _Ctx, extra: list[_Target], widths: bool = True) -> list[
             out.append(Finding("route.reach", True,
                                f"{t.label} is reachable{note}; the widest route to it is "
                                f"{_fmt(best)}, narrowest near ({where[0]:.0f}, {where[1]:.0f})",
-                               measured=round(best, 1), required=width, source=rw.source,
+                               measured=round(best, 1), required=width, source=_source(rw),
                                pieces=t.ids, room=t.room, where=where))
             per_room.setdefault(t.room, []).append((best, where, ids, True))
             continue
@@ -952,11 +960,11 @@ def _check_routes(ctx: _Ctx, extra: list[_Target], widths: bool = True) -> list[
         if ids:
             msg += f", next to {', '.join(ids)}"
         out.append(Finding("route.reach", False, msg, measured=round(best, 1), required=width,
-                           source=rw.source, pieces=ids, room=t.room, where=where,
+                           source=_source(rw), pieces=ids, room=t.room, where=where,
                            outline=_outline(t.geom) if not isinstance(t.geom, (Point, MultiPoint))
                            else ()))
         per_room.setdefault(t.room, []).append((best, where, ids, False))
-    out += _route_widths(ctx, targets, per_room, width, rw.source, 2 * width if widths else width)
+    out += _route_widths(ctx, targets, per_room, width, _source(rw), 2 * width if widths else width)
     return out
 
 

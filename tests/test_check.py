@@ -483,3 +483,17 @@ def test_outline_is_valid_polygon() -> None:
     pieces = (_custom("p", 500, 2500, 1500, 3000), _custom("q", 1400, 2900, 2000, 3400))
     f = audit(_room_plan(pieces), rules).by_rule("piece.overlap")[0]
     assert Polygon(f.outline).area == pytest.approx(100 * 100)
+
+
+def test_overridden_rule_says_so_in_the_source() -> None:
+    # the everyday route width 30 in (762 mm) comes from a handbook; a client's 900 mm is the
+    # plan's own value, so the finding must not attribute 900 mm to the handbook alone
+    pieces = _gap(800, 300)
+    plain = load_ruleset("everyday")
+    own = load_ruleset("everyday", {"route.width": 900})
+    f_plain = audit(_room_plan(pieces), plain).by_rule("route.width")[0]
+    f_own = audit(_room_plan(pieces), own).by_rule("route.width")[0]
+    assert f_plain.source == plain.get("route.width").source
+    assert f_own.required == 900 and not f_own.ok
+    assert f_own.source.startswith("value set by the plan for this client")
+    assert plain.get("route.width").source in f_own.source
