@@ -97,7 +97,9 @@ class Row:
         values that print the same tie."""
         if metric == "rules_failed":
             return (self.rules_failed,)
-        if metric == "walking":
+        if metric == "walking":  # no trip to walk: nothing to compare, not a best 0 m
+            if not self.routes.trips:
+                return None
             return (self.unreachable, round(self.walking_m_per_day, 1))
         if metric == "narrowest":  # an unreachable trip is narrower than any width
             if not self.routes.trips:
@@ -117,6 +119,8 @@ class Row:
         if metric == "rules_failed":
             return f"{self.rules_failed} of {len(self.audit.findings)}"
         if metric == "walking":
+            if not self.routes.trips:
+                return "- (no trips)"
             out = f"{self.walking_m_per_day:.1f} m"
             if self.unreachable:
                 out += f" ({self.unreachable} trip{'s' if self.unreachable > 1 else ''} unreachable)"
@@ -265,5 +269,8 @@ def render_table(comparison: Comparison, mark: str = "*") -> str:
             if "unreachable" not in f:
                 notes.append(f"{r.name}: {f}")
         if r.routes.defaults:
-            notes.append(f"{r.name}: no routine in the plan; default trips assumed")
+            notes.append(f"{r.name}: no routine in the plan; " + (
+                "default trips assumed" if r.routes.trips else
+                "no default trip applies either (they join a placed bed to a WC, or a "
+                "kitchen to the entrance, a placed table or sofa)"))
     return "\n".join(lines + [""] + notes)

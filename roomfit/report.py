@@ -103,7 +103,10 @@ def _routes_table(row: Row) -> str:
     notes = [f"Route width {rs.route_width} mm (rule set {escape(row.rules.id)}); walking "
              f"{rs.walking_m_per_day:.1f} m a day over the reachable trips."]
     if rs.defaults:
-        notes.append("The plan lists no daily routine: default trips are assumed.")
+        notes.append("The plan lists no daily routine: default trips are assumed."
+                     if rs.trips else "The plan lists no daily routine and no default trip "
+                     "applies (they join a placed bed to a WC, or a kitchen to the entrance, a "
+                     "placed table or sofa).")
     return "\n".join(out) + "".join(f"<p class='note'>{n}</p>" for n in notes)
 
 

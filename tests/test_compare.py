@@ -102,3 +102,15 @@ def test_text_table_marks_best_values_and_lists_unreachable_trips():
 def test_names_must_match_plans():
     with pytest.raises(ValueError, match="one name per plan"):
         compare([_arrangement(900, 1500)], ["a", "b"], EVERYDAY)
+
+
+def test_plan_without_trips_is_not_best_at_walking():
+    # no routine and nothing a default trip joins (no WC, no kitchen): there is no walking to
+    # compare, so 0 m must not beat the arrangement whose occupant walks to the WC
+    walks = _arrangement(900, 1500)
+    still = replace(walks, fixtures=(), routines=())
+    cmp = compare([walks, still], ["walks", "still"], EVERYDAY)
+    assert not cmp.rows[1].routes.trips
+    assert cmp.rows[1].value("walking") is None and cmp.rows[1].text("walking") == "- (no trips)"
+    assert not cmp.is_best("walking", 1)
+    assert "still: no routine in the plan; no default trip applies" in render_table(cmp)
