@@ -71,6 +71,10 @@ _STRENGTHENED_SHARE = 0.6
 #: Improving solutions of one CP-SAT run audited at most (best first).
 _AUDITS_PER_SOLVE = 4
 
+#: A run whose first layouts all fail the audit stops after this many, so that they are cut
+#: off at once rather than at the end of the run.
+_FAILS_BEFORE_CUT = 2
+
 
 @dataclass(frozen=True)
 class SolveOptions:
@@ -257,6 +261,8 @@ class _Collect(cp_model.CpSolverSolutionCallback):
             self.verdicts[id(where)] = verdict
             if verdict.passed:
                 counters.valid_at(self.search.clock.elapsed())
+            elif len(self.verdicts) >= _FAILS_BEFORE_CUT:
+                self.StopSearch()  # cut these layouts off and search again
 
 
 class _Search:
