@@ -405,7 +405,9 @@ def build_model(
         piece = plan.piece(spec.id)
         locked = piece.locked and piece.placement is not None
         allowed = [r for r in spec.rooms if r in geo]
-        rots = [0, 90, 180, 270]
+        # a half turn changes nothing for a piece whose zones are symmetric and that needs no
+        # wall (a table, a lamp): two rotations suffice
+        rots = [0, 90] if _symmetric(spec) and spec.category not in _wall_lovers() else [0, 90, 180, 270]
         if locked:
             assert piece.placement is not None
             allowed, rots = [piece.placement.room], [piece.placement.rotation]
@@ -742,6 +744,10 @@ def decode(built: Built, solver: cp_model.CpSolver) -> dict[str, Placement]:
             if solver.Value(lit):
                 out[pv.spec.id] = Placement(solver.Value(pv.x), solver.Value(pv.y), rot, r)
     return out
+
+
+def _wall_lovers() -> set[str]:
+    return set(load_preferences()["wall"]["categories"])
 
 
 def _symmetric(spec: PieceSpec) -> bool:
