@@ -65,6 +65,9 @@ _MOVE = 300
 #: limit usually ends a run before the wall clock does and runs repeat exactly.
 _WORK_PER_SECOND = 0.04
 
+#: Share of the time limit for finding one layout per group before more are searched.
+_FIRST_PHASE_SHARE = 0.6
+
 #: Share of a group's time the strengthened model gets to find its first layout.
 _STRENGTHENED_SHARE = 0.6
 
@@ -111,9 +114,10 @@ class Candidate:
 
 @dataclass(frozen=True)
 class SolveStats:
-    """What the search did: wall-clock seconds in all, seconds to the first checker-passing
-    layout, CP-SAT solves, audits run, audits failed (each added a cut), whether the plain
-    model was needed, and the number of independent room groups."""
+    """What the search did: wall-clock seconds in all, seconds until every room group had a
+    checker-passing layout (a valid arrangement of the whole flat), CP-SAT solves, audits run,
+    audits failed (each added a cut), whether the plain model was needed, and the number of
+    independent room groups."""
 
     elapsed: float = 0.0
     time_to_first: float | None = None
@@ -185,16 +189,10 @@ class _Counters:
     def __init__(self) -> None:
         self._lock = threading.Lock()
         self.values: dict[str, float] = {"solves": 0, "audits": 0, "cuts": 0, "fallback": 0}
-        self.first: float | None = None
 
     def add(self, key: str, n: float = 1) -> None:
         with self._lock:
             self.values[key] += n
-
-    def valid_at(self, seconds: float) -> None:
-        with self._lock:
-            if self.first is None:
-                self.first = seconds
 
     def __getitem__(self, key: str) -> float:
         return self.values[key]
@@ -254,13 +252,14 @@ class _Collect(cp_model.CpSolverSolutionCallback):
         where = decode(self.built, self)
         obj = self.ObjectiveValue() if self.built.has_objective else 0.0
         self.solutions.append((obj, where))
-        counters = self.search.counters
         if not self.passed and len(self.verdicts) < _AUDITS_PER_SOLVE:
             verdict = self.search._judge(where)
             self.passed = verdict.passed
             self.verdicts[id(where)] = verdict
             if verdict.passed:
-                counters.valid_at(self.search.clock.elapsed())
+                self.search.valid_at(self.search.clock.elapsed())
+                if self.search.quick:
+                    self.StopSearch()  # other groups wait for this lane: improve later
             elif len(self.verdicts) >= _FAILS_BEFORE_CUT:
                 self.StopSearch()  # cut these layouts off and search again
 
@@ -278,26 +277,50 @@ class _Search:
         self.found: list[_Found] = []
         self.impossible = False
         self.work_share = 1.0
+        self.first: float | None = None  # seconds to this group's first valid layout
+        self.built: Built | None = None
+        self.strengthen = True
+        self.cut = False  # a cut or a diversity rule was added: infeasible no longer proves much
+        self.exhausted = False
+        self.quick = False  # stop a run at its first valid layout
+
+    def valid_at(self, seconds: float) -> None:
+        if self.first is None:
+            self.first = seconds
 
     def _say(self, text: str) -> None:
         if self.progress is not None:
             self.progress(f"[{self.clock.elapsed():6.2f} s] round {int(self.counters['solves'])}: {text}")
 
     def run(self, wanted: int, budget_end: float) -> None:
-        """Strengthened model first (it gets a share of the time to find a first layout),
-        then, if it found none, the plain model with the rest."""
+        """Search until ``wanted`` layouts are found or ``budget_end``; may be called again
+        with a larger ``wanted`` to resume with the same model (and its cuts).
+
+        The strengthened model goes first (it gets a share of the time to find a first
+        layout); if it finds none, the plain model gets the rest."""
+        if self.exhausted or len(self.found) >= wanted:
+            return
+        if self.built is not None:
+            self._loop(wanted, budget_end, budget_end)
+            return
         first_end = time.monotonic() + _STRENGTHENED_SHARE * max(0.0, budget_end - time.monotonic())
-        self._loop(True, wanted, budget_end, first_end)
+        self._start(strengthen=True)
+        self._loop(wanted, budget_end, first_end)
         if self.found:
             return
         self.counters.add("fallback")
-        if self._loop(False, wanted, budget_end, budget_end) == "infeasible-plain":
+        self._start(strengthen=False)
+        if self._loop(wanted, budget_end, budget_end) == "infeasible-plain":
             self.impossible = True
 
-    def _loop(self, strengthen: bool, wanted: int, budget_end: float, first_end: float) -> str:
-        built = build_model(self.plan, self.rules, self.specs, self.rooms, self.options.grid,
-                            strengthen=strengthen, geo=self.geo)
-        cut = False
+    def _start(self, strengthen: bool) -> None:
+        self.built = build_model(self.plan, self.rules, self.specs, self.rooms, self.options.grid,
+                                 strengthen=strengthen, geo=self.geo)
+        self.strengthen, self.cut = strengthen, False
+
+    def _loop(self, wanted: int, budget_end: float, first_end: float) -> str:
+        built = self.built
+        assert built is not None
         movable = [pv for pv in built.pieces if not pv.locked]
         work_total = self.options.time_limit * _WORK_PER_SECOND * self.work_share
         while len(self.found) < wanted:
@@ -306,14 +329,16 @@ class _Search:
                 return "time"
             # the first layout may take all the time it has; later ones share what is left
             share = left / (wanted - len(self.found)) if self.found else left
-            work = work_total / wanted if self.found else work_total
+            work = work_total / self.options.candidates if self.found else work_total
             solver = cp_model.CpSolver()
             _params(solver, self.options, share, work)
             seen = _Collect(self, built)
             status = solver.Solve(built.model, seen)
             self.counters.add("solves")
             if status == cp_model.INFEASIBLE:
-                if not strengthen and not cut and not self.found:
+                if self.found:
+                    self.exhausted = True  # no further layout differs enough
+                if not self.strengthen and not self.cut and not self.found:
                     return "infeasible-plain"
                 return "infeasible"
             if status not in (cp_model.OPTIMAL, cp_model.FEASIBLE):
@@ -328,15 +353,15 @@ class _Search:
                     accepted = _Found(where, obj, bound, optimal and k == 0)
                     break
                 self._cut(built, movable, where, result)
-                cut = True
+                self.cut = True
             if accepted is None:
                 continue
             self.found.append(accepted)
-            self.counters.valid_at(self.clock.elapsed())
+            self.valid_at(self.clock.elapsed())
             self._say(f"rooms {', '.join(self.rooms)}: candidate {len(self.found)} "
                       f"(objective {accepted.objective:g}{', optimal' if accepted.optimal else ''})")
             self._forbid_near(built, movable, accepted.placements)
-            cut = True
+            self.cut = True
         return "done"
 
     def _judge(self, where: dict[str, Placement]):
@@ -382,8 +407,13 @@ def solve(plan: Plan, rules: RuleSet, options: SolveOptions | None = None,
     # small groups first: they finish early and leave their unused time to the larger ones
     groups = sorted(components(plan, specs), key=lambda g: len(g[1]))
 
+    searches: list[_Search] = []
+
     def stats() -> SolveStats:
-        return SolveStats(clock.elapsed(), counters.first, int(counters["solves"]),
+        # the whole flat has a valid arrangement once every group has one
+        firsts = [s.first for s in searches]
+        first = max(firsts) if searches and None not in firsts else None  # type: ignore[type-var]
+        return SolveStats(clock.elapsed(), first, int(counters["solves"]),
                           int(counters["audits"]), int(counters["cuts"]), bool(counters["fallback"]),
                           len(groups))
 
@@ -395,26 +425,40 @@ def solve(plan: Plan, rules: RuleSet, options: SolveOptions | None = None,
         return SolveResult("impossible", (), bare, stats())
 
     lanes = max(1, options.workers)
-    lock = threading.Lock()
-    done = [0]
-
-    def run(group: tuple[list[str], list[PieceSpec]]) -> _Search:
-        rooms, group_specs = group
-        s = _Search(plan, rules, rooms, group_specs, options, clock, progress, counters)
-        with lock:
-            waiting = len(groups) - done[0]
-        # a fair share of the time left among the groups not finished, ``lanes`` at a time
-        share = min(1.0, lanes / waiting)
+    searches += [_Search(plan, rules, rooms, group_specs, options, clock, progress, counters)
+                 for rooms, group_specs in groups]
+    for s in searches:
         s.work_share = min(1.0, lanes / len(groups))
-        s.run(options.candidates, time.monotonic() + share * clock.left())
-        with lock:
-            done[0] += 1
-        return s
 
-    # groups share no piece and no room: they are searched side by side, one CP-SAT worker
-    # each (one worker also keeps each search deterministic)
-    with ThreadPoolExecutor(max_workers=lanes) as pool:
-        searches = list(pool.map(run, groups))
+    def phase(wanted: int, portion: float) -> None:
+        """Every group searches up to ``wanted`` layouts, ``lanes`` groups at a time, each
+        with a fair share of ``portion`` of the time left among the groups still waiting."""
+        lock = threading.Lock()
+        done = [0]
+        pool_end = time.monotonic() + portion * clock.left()
+
+        def run(s: _Search) -> None:
+            with lock:
+                waiting = len(searches) - done[0]
+            left = max(0.0, pool_end - time.monotonic())
+            s.run(wanted, time.monotonic() + min(1.0, lanes / waiting) * left)
+            with lock:
+                done[0] += 1
+
+        # groups share no piece and no room: they are searched side by side, one CP-SAT
+        # worker each (one worker also keeps each search deterministic)
+        with ThreadPoolExecutor(max_workers=lanes) as pool:
+            list(pool.map(run, searches))
+
+    # first one layout for every group (a valid arrangement of the whole flat), then more
+    more = options.candidates > 1
+    for s in searches:  # more groups than lanes: take the first valid layout and move on
+        s.quick = more and len(searches) > lanes
+    phase(1, _FIRST_PHASE_SHARE if more else 1.0)
+    if more and all(s.found for s in searches):
+        for s in searches:
+            s.quick = False
+        phase(options.candidates, 1.0)
     for s, (rooms, group_specs) in zip(searches, groups, strict=True):
         if s.impossible:
             expl = explain(plan, rules, group_specs, rooms, options, clock.deadline)
