@@ -215,7 +215,7 @@ def _on_wall(r: _Reader, room: Room, at: tuple[int, int], width: int, field: str
               f"{room.id!r} (edge {i}); it must lie on a wall",
               f"allowed: within {ON_WALL_TOLERANCE} mm")
         return
-    (x0, y0), (x1, y1) = room.outline[i], room.outline[(i + 1) % len(room.outline)]
+    (x0, y0), (x1, y1) = _straight_run(room.outline, i)
     edge = math.hypot(x1 - x0, y1 - y0)
     if width > edge:
         r.add(f"{field}.width", f"{width} mm is wider than its wall (edge {i} of room "
@@ -226,6 +226,28 @@ def _on_wall(r: _Reader, room: Room, at: tuple[int, int], width: int, field: str
         over = max(width / 2 - along, along + width / 2 - edge)
         r.add(f"{field}.at", f"the opening runs {over:.0f} mm past the end of its wall (edge {i} "
               f"of room {room.id!r}, {edge:.0f} mm long)", "move it along the wall")
+
+
+def _straight_run(outline: tuple[tuple[int, int], ...], i: int) -> tuple[tuple[int, int], ...]:
+    """Ends of the straight wall holding edge ``i``: neighbouring edges that carry on in the
+    same direction (a corner listed in the middle of a wall, or a repeated corner) belong
+    to it, so an opening may span them."""
+    n = len(outline)
+
+    def straight(a: tuple[int, int], b: tuple[int, int], c: tuple[int, int]) -> bool:
+        ux, uy, vx, vy = b[0] - a[0], b[1] - a[1], c[0] - b[0], c[1] - b[1]
+        return ux * vy - uy * vx == 0 and ux * vx + uy * vy >= 0
+
+    start, end = i, (i + 1) % n
+    for _ in range(n - 2):
+        if not straight(outline[(start - 1) % n], outline[start], outline[end]):
+            break
+        start = (start - 1) % n
+    for _ in range(n - 2):
+        if not straight(outline[start], outline[end], outline[(end + 1) % n]):
+            break
+        end = (end + 1) % n
+    return outline[start], outline[end]
 
 
 def _reaches_other_room(r: _Reader, host: Room, other: Room, at: tuple[int, int], width: int,
@@ -363,6 +385,12 @@ def _read_fixtures(r: _Reader, data: dict, rooms: dict[str, Room]) -> list[Fixtu
         if outside > 1.0:
             r.add(f"{f}.outline", f"{outside / 1e6:.3f} m2 of the fitting lies outside room {room!r}")
             continue
+        if zone is not None:
+            beyond = Polygon(zone).difference(rp).area
+            if beyond > 1.0:
+                r.add(f"{f}.zone", f"{beyond / 1e6:.3f} m2 of the fitting's zone lies outside room "
+                      f"{room!r}", "the zone is floor in front of the fitting, inside its room")
+                continue
         out.append(Fixture(fid, room, kind, label, outline, height, zone))  # type: ignore[arg-type]
     return out
 

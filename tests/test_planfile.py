@@ -173,6 +173,30 @@ def test_entrance_with_a_bad_width_is_not_also_missing() -> None:
     assert "doors[0].rooms[1]" in got and "no entrance" in got["doors"]
 
 
+def test_fitting_zone_outside_its_room() -> None:
+    # the radiator stands on room a's west wall (x 0..100); a zone west of it, x -600..0,
+    # is 600 x 1000 mm = 0.6 m2 of floor that is not in the room
+    data = _base()
+    data["fixtures"][0]["zone"] = [[-600, 1000], [0, 1000], [0, 2000], [-600, 2000]]
+    assert "0.600 m2 of the fitting's zone lies outside room 'a'" in _problems(data)[
+        "fixtures[0].zone"]
+    data["fixtures"][0]["zone"] = [[100, 1000], [700, 1000], [700, 2000], [100, 2000]]
+    assert loads_plan(tomli_w.dumps(data)).fixtures[0].zone is not None
+
+
+def test_opening_across_a_corner_listed_mid_wall() -> None:
+    # room a's south wall listed as two straight pieces (0..2000, 2000..4000) and a repeated
+    # corner: the 900 mm entrance centred at x 2000 spans both pieces of one straight wall
+    data = _base()
+    data["rooms"][0]["outline"] = [[0, 0], [2000, 0], [4000, 0], [4000, 3000], [4000, 3000],
+                                   [0, 3000]]
+    plan = loads_plan(tomli_w.dumps(data))
+    assert plan.doors[0].at == (2000, 0)
+    # a real corner still ends a wall: the same door at x 4000 runs 450 mm round the corner
+    data["doors"][0]["at"] = [4000, 0]
+    assert "runs 450 mm past the end of its wall" in _problems(data)["doors[0].at"]
+
+
 def test_door_off_its_wall_says_how_far() -> None:
     data = _base()
     data["doors"][1]["at"] = [3700, 1500]
