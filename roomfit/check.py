@@ -913,7 +913,12 @@ def _check_routes(ctx: _Ctx, extra: list[_Target], widths: bool = True) -> list[
         return [Finding("route.reach", False, "the plan has no entrance door to start from",
                         required=width, source=_source(rw))]
     targets = _targets(ctx) + extra
-    out: list[Finding] = []
+    doored = {rid for ds in ctx.doors for rid in ds.door.rooms}
+    out: list[Finding] = [  # a room without a door has nothing to aim at, yet cannot be entered
+        Finding("route.reach", False, f"room {room.id} has no door: it cannot be reached from "
+                "the entrance", measured=0.0, required=width, source=_source(rw), room=room.id,
+                where=_pt(ctx.rooms[room.id]), outline=_outline(ctx.rooms[room.id]))
+        for room in ctx.plan.rooms if room.id not in doored]
     pinch_state: _Reach | None = None
     pinch_long = 0.0
     per_room: dict[str, list[tuple[float, tuple[float, float] | None, tuple[str, ...], bool]]] = {}

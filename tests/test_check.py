@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import json
 import math
+from dataclasses import replace
 from pathlib import Path
 
 import numpy as np
@@ -497,3 +498,17 @@ def test_overridden_rule_says_so_in_the_source() -> None:
     assert f_own.required == 900 and not f_own.ok
     assert f_own.source.startswith("value set by the plan for this client")
     assert plain.get("route.width").source in f_own.source
+
+
+def test_room_without_a_door_cannot_be_reached() -> None:
+    # a closet 2 m east of the room with no door: nothing in it is a target, yet nobody can
+    # get in; a doorway across the 100 mm wall lets everything in it be reached
+    rules = load_ruleset("everyday")
+    base = _room_plan()
+    closet = Room("closet", "Closet", "storage", ((4100, 0), (6000, 0), (6000, 2000), (4100, 2000)))
+    shut = replace(base, rooms=(*base.rooms, closet))
+    f = _one(audit(shut, rules), "route.reach", "closet")
+    assert not f.ok and f.room == "closet" and "no door" in f.message
+    door = Door("d-closet", ("r", "closet"), (ROOM_W, 1000), 800, Leaf.NONE)
+    open_ = replace(shut, doors=(*shut.doors, door))
+    assert all(f.ok for f in audit(open_, rules).by_rule("route.reach"))
