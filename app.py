@@ -66,13 +66,16 @@ def _set_plan(plan: Plan, origin: str) -> None:
     s["origin"] = origin
     s["gen"] = s.get("gen", 0) + 1  # fresh form widgets for a newly opened plan
     s["solved"] = None
-    s["edit_error"] = []
+    s["edit_error"] = None
+    placed = sum(p.placement is not None for p in plan.furniture)
+    s["notice"] = ("top", f"Opened {origin}: {len(plan.furniture)} pieces, {placed} with a place"
+                   + (" (see Check as it stands)." if placed else "."))
 
 
 def _init() -> None:
     s = _state()
     for key, value in (("plan", None), ("origin", ""), ("solved", None), ("upload_id", None),
-                       ("upload_error", []), ("edit_error", []), ("notice", "")):
+                       ("upload_error", []), ("edit_error", None), ("notice", None)):
         s.setdefault(key, value)
     if s["plan"] is None:
         samples = page.sample_files(PLANS)
@@ -90,21 +93,32 @@ def _k(name: str, item: str) -> str:
     return f"{name}_{_state().get('gen', 0)}_{item}"
 
 
-def _fail(err: RoomfitError) -> None:
-    _state()["edit_error"] = page.error_lines(err)
+def _edit(func: Any, *args: Any, where: str, notice: str, **kwargs: Any) -> None:
+    """Apply an edit to the plan; on a bad value keep the plan and say what is wrong.
 
-
-def _edit(func: Any, *args: Any, notice: str = "", **kwargs: Any) -> None:
-    """Apply an edit to the plan; on a bad value keep the plan and show what is wrong."""
+    ``where`` names the tab that shows the outcome, so the message appears beside the form
+    the user just used.
+    """
     s = _state()
     try:
         new = func(s["plan"], *args, **kwargs)
     except RoomfitError as e:
-        _fail(e)
+        s["edit_error"] = (where, page.error_lines(e))
         return
     s["plan"] = new
-    s["edit_error"] = []
-    s["notice"] = notice
+    s["edit_error"] = None
+    s["notice"] = (where, notice)
+
+
+def _messages(where: str) -> None:
+    """The outcome of the last edit, shown once, in the part of the page it came from."""
+    s = _state()
+    note, err = s.get("notice"), s.get("edit_error")
+    if note and note[0] == where:
+        st.success(note[1])
+        s["notice"] = None
+    if err and err[0] == where:
+        st.error("That change was not made; the plan stays as it was.\n\n" + "\n\n".join(err[1]))
 
 
 @contextmanager
@@ -166,7 +180,7 @@ def _add_piece() -> None:
     t = s["add_type"]
     _edit(page.add_piece, t, s[_k("add_rooms", t)], s[_k("add_label", t)], s[_k("add_w", t)],
           s[_k("add_d", t)], s[_k("add_h", t)], _access(s.get(_k("add_access", t))),
-          notice="Piece added.")
+          where="furniture", notice="Piece added.")
 
 
 def _access(choice: str | None) -> str | None:
@@ -178,30 +192,31 @@ def _change_piece() -> None:
     pid = s["edit_piece"]
     _edit(page.update_piece, pid, label=s[_k("ed_label", pid)], rooms=s[_k("ed_rooms", pid)],
           width=s[_k("ed_w", pid)], depth=s[_k("ed_d", pid)], height=s[_k("ed_h", pid)],
-          access=_access(s.get(_k("ed_access", pid))), notice=f"{pid} changed.")
+          access=_access(s.get(_k("ed_access", pid))), where="furniture",
+          notice=f"{pid} changed.")
 
 
 def _remove_piece() -> None:
     pid = _state()["edit_piece"]
-    _edit(page.remove_piece, pid, notice=f"{pid} removed.")
+    _edit(page.remove_piece, pid, where="furniture", notice=f"{pid} removed.")
 
 
 def _toggle_lock() -> None:
     s = _state()
     pid = s["edit_piece"]
     piece = s["plan"].piece(pid)
-    _edit(page.lock_piece, pid, not piece.locked,
+    _edit(page.lock_piece, pid, not piece.locked, where="furniture",
           notice=f"{pid} {'unlocked' if piece.locked else 'locked where it stands'}.")
 
 
 def _pick_ruleset() -> None:
     s = _state()
     plan: Plan = s["plan"]
-    _edit(page.with_rule_choice, s["rule_set"], plan.rules.override_map(),
+    _edit(page.with_rule_choice, s["rule_set"], plan.rules.override_map(), where="rules",
           notice=f"Rule set {s['rule_set']} chosen.")
     if s["edit_error"]:
         # the plan's overrides do not fit the new set: pick it without them
-        _edit(page.with_rule_choice, s["rule_set"], {},
+        _edit(page.with_rule_choice, s["rule_set"], {}, where="rules",
               notice=f"Rule set {s['rule_set']} chosen; the earlier overrides did not apply.")
 
 
@@ -224,20 +239,22 @@ def _apply_overrides() -> None:
             overrides.pop("turning.shape", None)
         else:
             overrides["turning.shape"] = shape
-    _edit(page.with_rule_choice, plan.rules.set, overrides, notice="Rule values applied.")
+    _edit(page.with_rule_choice, plan.rules.set, overrides, where="rules",
+          notice="Rule values applied.")
 
 
 def _clear_overrides() -> None:
     plan: Plan = _state()["plan"]
-    _edit(page.with_rule_choice, plan.rules.set, {}, notice="Overrides cleared.")
+    _edit(page.with_rule_choice, plan.rules.set, {}, where="rules", notice="Overrides cleared.")
 
 
 def _keep(index: int) -> None:
     s = _state()
     result = s["solved"]["result"]
     cand = result.candidates[index]
-    _edit(page.keep_layout, cand.layout, notice=f"Arrangement {index + 1} kept: every piece now "
-          "has a place; lock the ones that should stay, or check it as it stands.")
+    _edit(page.keep_layout, cand.layout, where="arrangements",
+          notice=f"Arrangement {index + 1} kept: every piece now has a place; lock the ones "
+          "that should stay, or check it as it stands.")
 
 
 # ---------------------------------------------------------------------------------------------
@@ -426,11 +443,11 @@ def _solve(plan: Plan, rules: RuleSet) -> None:
         bar = st.progress(0.0, text="Starting…")
         t0 = time.monotonic()
 
-        def progress(msg: str) -> None:
-            bar.progress(min(0.99, (time.monotonic() - t0) / limit), text=msg[:200])
+        def tick(msg: str) -> None:
+            bar.progress(min(0.99, (time.monotonic() - t0) / limit), text=(msg or "Searching…")[:200])
 
         options = solver.SolveOptions(candidates=int(n), time_limit=float(limit), seed=int(seed))
-        result = solver.solve(plan, rules, options, progress=progress)
+        result = page.run_polling(lambda say: solver.solve(plan, rules, options, progress=say), tick)
         bar.progress(1.0, text=f"Searched for {time.monotonic() - t0:.1f} s.")
         s["solved"] = {"result": result, "plan": plan, "rules": rules, "time_limit": float(limit),
                        "shown": None}
@@ -553,23 +570,23 @@ def main() -> None:
     if plan is None:
         st.info("Open a bundled sample or bring a plan file to start.")
         return
-    if s["notice"]:
-        st.success(s["notice"])
-        s["notice"] = ""
-    if s["edit_error"]:
-        st.error("That change was not made; the plan stays as it was.\n\n"
-                 + "\n\n".join(s["edit_error"]))
     rules = rules_for(plan)
     st.caption(f"Rule set: {rules.label}" + (f" · {len(rules.overridden)} values overridden"
                                              if rules.overridden else ""))
-    tabs = st.tabs(["The apartment", "Furniture", "Rules", "Arrangements", "Check as it stands"])
+    with st.container():  # one element whatever it holds, so the tabs below keep their place
+        _messages("top")
+    tabs = st.tabs(["The apartment", "Furniture", "Rules", "Arrangements", "Check as it stands"],
+                   key="section")
     with tabs[0], _panel("apartment"):
         _overview(plan, rules)
     with tabs[1], _panel("furniture"):
+        _messages("furniture")
         _furniture(plan, rules)
     with tabs[2], _panel("rules"):
+        _messages("rules")
         _rules(plan, rules)
     with tabs[3], _panel("arrangements"):
+        _messages("arrangements")
         _solve(plan, rules)
     with tabs[4], _panel("check"):
         _audit(plan, rules)

@@ -20,11 +20,13 @@ kept until an edit is valid.
 from __future__ import annotations
 
 import importlib
-from collections.abc import Sequence
+import queue
+import threading
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass, replace
 from pathlib import Path
 from types import ModuleType
-from typing import Any
+from typing import Any, TypeVar
 
 from roomfit.catalog import load_catalog, resolve_pieces
 from roomfit.errors import PlanError, Problem, RoomfitError, RuleError
@@ -56,8 +58,11 @@ __all__ = [
     "route_rows",
     "comparison_rows",
     "describe_outcome",
+    "run_polling",
     "file_stem",
 ]
+
+T = TypeVar("T")
 
 #: Name under which problems in an edited (not yet saved) plan are reported.
 EDITED_SOURCE = "plan edited on the page"
@@ -355,6 +360,39 @@ def describe_outcome(result: Any, time_limit: float) -> Outcome:
     return Outcome("warning", f"No arrangement found within {time_limit:g} s. This does not "
                    "prove that the furniture cannot fit: allow more time, or remove or lock "
                    "a piece and try again.", fixes)
+
+
+def run_polling(work: Callable[[Callable[[str], None]], T], tick: Callable[[str], None],
+                every: float = 0.25) -> T:
+    """Run ``work(progress)`` in a worker thread and return its result (or raise its error).
+
+    ``progress`` may be called from any thread (the solver reports from its own worker
+    threads); the messages are queued and ``tick(latest message)`` is called from *this*
+    thread every ``every`` seconds until ``work`` ends, so a page can redraw its progress bar
+    where its drawing functions work.
+    """
+    messages: queue.SimpleQueue[str] = queue.SimpleQueue()
+    box: dict[str, Any] = {}
+
+    def run() -> None:
+        try:
+            box["result"] = work(messages.put)
+        except BaseException as e:  # noqa: BLE001 - handed to the calling thread below
+            box["error"] = e
+
+    worker = threading.Thread(target=run, name="roomfit-page-work", daemon=True)
+    worker.start()
+    latest = ""
+    while True:
+        worker.join(every)
+        while not messages.empty():
+            latest = messages.get_nowait()
+        if not worker.is_alive():
+            break
+        tick(latest)
+    if "error" in box:
+        raise box["error"]
+    return box["result"]
 
 
 def file_stem(plan: Plan) -> str:

@@ -14,6 +14,7 @@ from streamlit.testing.v1 import AppTest
 
 from roomfit import page
 from roomfit.errors import PlanError, RuleError
+from roomfit.plan import Placement
 from roomfit.planfile import dumps_plan, loads_plan, read_plan
 from roomfit.rules import load_ruleset, rules_for
 
@@ -75,7 +76,7 @@ def test_add_piece_takes_catalogue_size_and_custom_needs_all_sizes() -> None:
 def test_update_piece_drops_a_place_in_a_room_no_longer_allowed() -> None:
     plan = page.add_piece(read_plan(STUDIO), "custom", ("main", "hall"), "Rack", 800, 300, 900)
     pid = plan.furniture[-1].id
-    layout = ((pid, plan.furniture[0].placement.__class__(3000, 2100, 0, "main")),)
+    layout = ((pid, Placement(3000, 2100, 0, "main")),)
     placed = page.lock_piece(page.keep_layout(plan, layout), pid, True)
     assert placed.piece(pid).locked
     moved = page.update_piece(placed, pid, label="Rack", rooms=("hall",), width=800, depth=300,
@@ -103,6 +104,29 @@ def test_rule_choice_with_override_is_reported_as_overridden() -> None:
     with pytest.raises(RuleError, match=r"plan edited on the page: rules\.overrides\.route\.nope: "
                        "rule set 'ada-2010' has no rule 'route.nope'"):
         page.with_rule_choice(plan, "ada-2010", {"route.nope": 5})
+
+
+def test_run_polling_reports_progress_from_worker_threads_on_the_calling_thread() -> None:
+    import threading
+    from concurrent.futures import ThreadPoolExecutor
+
+    caller = threading.get_ident()
+    seen: list[tuple[int, str]] = []
+
+    def work(say):  # noqa: ANN001, ANN202 - reports from two pool threads, like the solver
+        with ThreadPoolExecutor(2) as pool:
+            list(pool.map(lambda i: [say(f"step {i}"), threading.Event().wait(0.3)], range(4)))
+        return 42
+
+    assert page.run_polling(work, lambda m: seen.append((threading.get_ident(), m)), 0.05) == 42
+    assert seen and {t for t, _ in seen} == {caller}
+    assert any(m.startswith("step ") for _, m in seen)
+
+    def broken(say):  # noqa: ANN001, ANN202
+        raise KeyError("boom")
+
+    with pytest.raises(KeyError, match="boom"):  # the worker's error reaches the caller
+        page.run_polling(broken, lambda m: None, 0.01)
 
 
 def test_new_piece_id_avoids_every_id_in_the_plan() -> None:

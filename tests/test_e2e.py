@@ -140,6 +140,7 @@ def test_solve_a_sample_in_a_real_browser(server: str, tmp_path: Path) -> None:
             assert panel.locator(".rf-drawing svg").count() >= 2
             expect(panel.get_by_text("Caution: these results are advisory").first).to_be_visible()
             expect(panel.get_by_role("button", name="Keep this arrangement").first).to_be_visible()
+            assert tab.get_by_test_id("stException").count() == 0
             shot = tmp_path / "candidates.png"
             tab.screenshot(path=str(shot), full_page=True)
             assert shot.stat().st_size > 10_000
