@@ -222,6 +222,11 @@ class _Ctx:
     bases: dict[tuple[str, str], tuple[float, float]] = field(default_factory=dict)
 
 
+def _standing(ctx: _Ctx) -> list[tuple[str, _Placed]]:
+    """Placed pieces that stand on the floor, leaving out rugs (:func:`geometry.lies_flat`)."""
+    return [(pid, pc) for pid, pc in ctx.placed.items() if not geo.lies_flat(pc.spec)]
+
+
 def _context(plan: Plan, rules: RuleSet) -> _Ctx:
     specs = {s.id: s for s in resolve_pieces(plan, rules)}
     placed = {
@@ -229,7 +234,8 @@ def _context(plan: Plan, rules: RuleSet) -> _Ctx:
     }
     rooms = geo.room_polygons(plan)
     fixtures = {f.id: geo.fixture_polygon(f) for f in plan.fixtures}
-    taken = unary_union([p.shape for p in placed.values()] + list(fixtures.values()))
+    taken = unary_union([p.shape for p in placed.values() if not geo.lies_flat(p.spec)]
+                        + list(fixtures.values()))
     free = {rid: poly.difference(taken) if not taken.is_empty else poly
             for rid, poly in rooms.items()}
     return _Ctx(plan, rules, placed, rooms, fixtures, free, geo.door_shapes(plan, rules))
@@ -268,7 +274,7 @@ def _check_rooms(ctx: _Ctx) -> list[Finding]:
 
 def _check_overlap(ctx: _Ctx) -> list[Finding]:
     out: list[Finding] = []
-    items = [(pid, pc.shape, pc.placement.room) for pid, pc in ctx.placed.items()]
+    items = [(pid, pc.shape, pc.placement.room) for pid, pc in _standing(ctx)]
     fixtures = [(f.id, ctx.fixtures[f.id], f.room) for f in ctx.plan.fixtures]
     for i, (a, sa, room) in enumerate(items):
         for b, sb, _ in items[i + 1:] + fixtures:
@@ -335,7 +341,7 @@ def _blockers(zone: BaseGeometry, shapes: Iterable[tuple[str, BaseGeometry]],
 
 def _check_zones(ctx: _Ctx) -> list[Finding]:
     out: list[Finding] = []
-    pieces = [(pid, pc.shape) for pid, pc in ctx.placed.items()]
+    pieces = [(pid, pc.shape) for pid, pc in _standing(ctx)]
     solid = pieces + list(ctx.fixtures.items())
     for pid, pc in ctx.placed.items():
         room = ctx.rooms.get(pc.placement.room)
@@ -372,7 +378,7 @@ def _check_zones(ctx: _Ctx) -> list[Finding]:
 def _check_doors(ctx: _Ctx) -> list[Finding]:
     out: list[Finding] = []
     need = ctx.rules.get("door.min_width")
-    pieces = [(pid, pc.shape) for pid, pc in ctx.placed.items()]
+    pieces = [(pid, pc.shape) for pid, pc in _standing(ctx)]
     for ds in ctx.doors:
         d = ds.door
         ok = d.width + 1e-9 >= need.exact_mm
@@ -848,7 +854,7 @@ def _bottleneck(ctx: _Ctx, t: _Target, width: float) -> tuple[tuple[float, float
     pa, pb = nearest_points(best[0], best[1])
     where = Point((pa.x + pb.x) / 2, (pa.y + pb.y) / 2)
     route = ctx.rules.get("route.width").exact_mm
-    ids = [pid for pid, pc in ctx.placed.items() if pc.shape.distance(where) <= route]
+    ids = [pid for pid, pc in _standing(ctx) if pc.shape.distance(where) <= route]
     ids += [fid for fid, g in ctx.fixtures.items() if g.distance(where) <= route]
     return (round(where.x, 1), round(where.y, 1)), tuple(ids)
 

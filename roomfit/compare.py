@@ -29,7 +29,7 @@ from shapely.ops import unary_union
 
 from roomfit.catalog import resolve_pieces
 from roomfit.check import Audit, audit
-from roomfit.geometry import fixture_polygon, footprint, side_direction, window_segment
+from roomfit.geometry import fixture_polygon, footprint, lies_flat, side_direction, window_segment
 from roomfit.plan import Plan
 from roomfit.routes import RouteScores, score_routes
 from roomfit.rules import RuleSet, rules_for
@@ -195,7 +195,8 @@ def _free_share(plan: Plan, rules: RuleSet) -> float:
     floor = unary_union([Polygon(r.outline) for r in plan.rooms])
     specs = {s.id: s for s in resolve_pieces(plan, rules)}
     taken = [fixture_polygon(f) for f in plan.fixtures]
-    taken += [footprint(specs[pid], pl) for pid, pl in plan.layout]
+    taken += [footprint(specs[pid], pl) for pid, pl in plan.layout
+              if not lies_flat(specs[pid])]  # a rug leaves its floor free
     used = floor.intersection(unary_union(taken)).area if taken else 0.0
     return (floor.area - used) / floor.area if floor.area else 0.0
 

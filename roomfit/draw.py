@@ -36,6 +36,7 @@ from roomfit.geometry import (
     fixture_polygon,
     fixture_zone,
     footprint_box,
+    lies_flat,
     room_polygon,
     side_direction,
     use_zones,
@@ -338,7 +339,8 @@ def _draw_furniture(c: _Canvas, plan: Plan, rules: RuleSet,
     specs = {s.id: s for s in resolve_pieces(plan, rules)}
     missing = []
     zones, pieces = [], []
-    for p in plan.furniture:
+    # rugs first, so the pieces standing on them are drawn on top
+    for p in sorted(plan.furniture, key=lambda p: not lies_flat(specs[p.id])):
         pl = p.placement
         if pl is None:
             missing.append(p.id)

@@ -33,6 +33,7 @@ __all__ = [
     "side_direction",
     "footprint",
     "footprint_box",
+    "lies_flat",
     "zone_polygon",
     "use_zones",
     "wall_direction",
@@ -101,6 +102,12 @@ def footprint_box(spec: PieceSpec, placement: Placement) -> tuple[int, int, int,
     """``(x0, y0, x1, y1)`` of a placed piece's footprint."""
     w, d = turned_size(spec.width, spec.depth, placement.rotation)
     return placement.x, placement.y, placement.x + w, placement.y + d
+
+
+def lies_flat(spec: PieceSpec) -> bool:
+    """True for a piece of height 0 (a rug): other pieces may stand on it and people walk
+    over it, so it is no obstacle; it must still lie inside its room."""
+    return spec.height == 0
 
 
 def footprint(spec: PieceSpec, placement: Placement) -> Polygon:

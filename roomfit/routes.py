@@ -51,7 +51,14 @@ from shapely.geometry.polygon import orient
 from shapely.ops import nearest_points, unary_union
 
 from roomfit.catalog import PieceSpec, resolve_pieces
-from roomfit.geometry import door_shape, fixture_polygon, fixture_zone, footprint, use_zones
+from roomfit.geometry import (
+    door_shape,
+    fixture_polygon,
+    fixture_zone,
+    footprint,
+    lies_flat,
+    use_zones,
+)
 from roomfit.plan import OUTSIDE, Plan, Trip
 from roomfit.rules import RuleSet
 
@@ -230,7 +237,8 @@ def _build_base(plan: Plan, rules: RuleSet) -> _Base:
     rooms = {rm.id: Polygon(rm.outline) for rm in plan.rooms}
     specs = {s.id: s for s in resolve_pieces(plan, rules)}
     obstacles: list[tuple[str, BaseGeometry]] = [(f.id, fixture_polygon(f)) for f in plan.fixtures]
-    obstacles += [(pid, footprint(specs[pid], pl)) for pid, pl in plan.layout]
+    obstacles += [(pid, footprint(specs[pid], pl)) for pid, pl in plan.layout
+                  if not lies_flat(specs[pid])]  # people walk over a rug
     taken = unary_union([g for _, g in obstacles]) if obstacles else Polygon()
 
     doors: list[_Doorway] = []

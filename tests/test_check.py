@@ -512,3 +512,20 @@ def test_room_without_a_door_cannot_be_reached() -> None:
     door = Door("d-closet", ("r", "closet"), (ROOM_W, 1000), 800, Leaf.NONE)
     open_ = replace(shut, doors=(*shut.doors, door))
     assert all(f.ok for f in audit(open_, rules).by_rule("route.reach"))
+
+
+def test_rug_lies_under_pieces_and_is_walked_over() -> None:
+    # a rug (height 0, plan-format: "0 allowed: a rug") across the whole room under the wall
+    # of pieces' gap and under a stool: no overlap, no blocked passage; it must still lie
+    # inside the room
+    rules = load_ruleset("everyday")
+    rug = Piece("rug", "custom", ("r",), width=ROOM_W, depth=1000, height=0,
+                placement=Placement(0, WALL_Y - 500, 0, "r"))
+    stool = _custom("stool", 600, WALL_Y - 400, 900, WALL_Y - 100)
+    result = audit(_room_plan((*_gap(900, 300), rug, stool)), rules)
+    assert result.passed, [f.message for f in result.failures]
+    # by hand: the passage is the 900 mm gap, not the rug's edge
+    assert abs(result.by_rule("route.width")[0].measured - 900) <= 5
+    outside = replace(rug, placement=Placement(-200, WALL_Y - 500, 0, "r"))
+    f = _one(audit(_room_plan((outside,)), rules), "piece.inside", "rug")
+    assert not f.ok and f.measured == pytest.approx(200 * 1000)

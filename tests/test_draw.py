@@ -15,7 +15,7 @@ from roomfit.cli import main
 from roomfit.draw import SCALE_BAR_MM, STYLE, Mark, draw_svg
 from roomfit.draw import Path as Route
 from roomfit.geometry import footprint_box
-from roomfit.plan import Plan
+from roomfit.plan import Piece, Placement, Plan
 from roomfit.planfile import read_plan
 from roomfit.rules import rules_for
 
@@ -219,3 +219,14 @@ def test_pieces_zones_and_marks_past_the_walls_stay_on_the_drawing() -> None:
     zones = [e for e in root.iter(f"{{{NS['s']}}}polygon") if "use-zone" in e.get("class", "")]
     ys = [float(v) for z in zones for v in z.get("points", "").replace(",", " ").split()[1::2]]
     assert max(ys) - min(ys) >= 1500
+
+
+def test_rugs_are_drawn_under_the_pieces_standing_on_them() -> None:
+    # a rug (height 0) listed after the table still lies beneath it in the drawing
+    plan = read_plan(Path(__file__).parent / "plans_unseen" / "column-room.toml")
+    table = replace(plan.furniture[1], placement=Placement(1000, 1000, 0, "loft"))
+    rug = Piece("rug", "custom", ("loft",), width=2000, depth=2000, height=0,
+                placement=Placement(500, 500, 0, "loft"))
+    root = _svg(replace(plan, furniture=(plan.furniture[0], table, rug)))
+    order = [e.get("id") for e in root.iter(f"{{{NS['s']}}}g") if "piece" in e.get("class", "")]
+    assert order.index("piece-rug") < order.index("piece-table")

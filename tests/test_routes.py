@@ -57,6 +57,19 @@ def test_empty_convex_room_is_a_straight_line():
     assert t.narrowest_mm == pytest.approx(2400, abs=1)
 
 
+def test_a_rug_is_walked_over_but_a_box_is_walked_round():
+    # a wall-to-wall strip 800 mm deep across the room between the two points: as a rug
+    # (height 0) the route is the straight line, sqrt(2000^2 + 1000^2) = 2236.068 mm; the
+    # same strip 700 mm high blocks the way completely
+    rug = Piece("rug", "custom", ("r",), width=4000, depth=800, height=0,
+                placement=Placement(0, 1100, 0, "r"))
+    t = route(_plan([_room("r", 0, 0, 4000, 2400)], [rug]), EVERYDAY, (1000, 1000), (3000, 2000))
+    assert t.reachable and t.length_mm == pytest.approx(math.sqrt(2000**2 + 1000**2), abs=1e-6)
+    wall = _block("box", 0, 1100, 4000, 800)
+    t = route(_plan([_room("r", 0, 0, 4000, 2400)], [wall]), EVERYDAY, (1000, 700), (3000, 2200))
+    assert not t.reachable
+
+
 def test_l_shaped_room_bends_at_the_shrunk_corner():
     # L-shaped room with 2000 mm wide arms, reflex corner at (2000, 2000); body 800 mm wide,
     # so the walkway's corner is (1600, 1600). By hand: 2 * sqrt(3400^2 + 600^2) = 6905.07 mm.
