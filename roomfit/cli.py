@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import argparse
 import json
+import math
 import os
 import sys
 from collections.abc import Callable, Sequence
@@ -193,9 +194,9 @@ def _cmd_solve(args: argparse.Namespace) -> int:
     from roomfit.solver import SolveOptions, solve
 
     plan, rules = _plan_and_rules(args)
-    if args.candidates < 1 or args.time_limit <= 0 or args.grid < 1:
+    if args.candidates < 1 or not 0 < args.time_limit < math.inf or args.grid < 1:
         raise RoomfitError(Problem("arguments", "--candidates, --time-limit and --grid must be "
-                                   "positive"))
+                                   "positive (and the time limit a finite number of seconds)"))
     out_dir = Path(args.output or f"{Path(args.plan).stem}-layouts")
     options = SolveOptions(candidates=args.candidates, time_limit=args.time_limit, seed=args.seed,
                            grid=args.grid)
@@ -298,6 +299,15 @@ def _cmd_report(args: argparse.Namespace) -> int:
     return EXIT_OK
 
 
+def _version() -> str:
+    from importlib.metadata import PackageNotFoundError, version
+
+    try:
+        return version("roomfit")
+    except PackageNotFoundError:  # run from a source tree that was never installed
+        return "(not installed)"
+
+
 def build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="roomfit",
@@ -305,6 +315,7 @@ def build_parser() -> argparse.ArgumentParser:
                     "wheelchair-access rules.",
         epilog=CAUTION,
     )
+    parser.add_argument("--version", action="version", version=f"roomfit {_version()}")
     sub = parser.add_subparsers(dest="command", required=True, metavar="COMMAND")
     p = sub.add_parser("validate", help="read a plan file and report every problem in it")
     p.add_argument("plan", help="plan file (.toml)")

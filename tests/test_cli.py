@@ -1,0 +1,28 @@
+"""The command-line shell: arguments it refuses before any work, and its version."""
+
+from __future__ import annotations
+
+from importlib.metadata import version
+from pathlib import Path
+
+import pytest
+
+from roomfit.cli import main
+
+PLAN = Path(__file__).parent / "plans_unseen" / "tiny-bed.toml"
+
+
+@pytest.mark.parametrize("limit", ["nan", "inf", "-inf", "0", "-1"])
+def test_solve_refuses_a_time_limit_that_is_not_a_finite_positive_number(
+        limit: str, tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    assert main(["solve", str(PLAN), f"--time-limit={limit}", "-o", str(tmp_path)]) == 2
+    captured = capsys.readouterr()
+    assert "--time-limit" in captured.err and "Traceback" not in captured.err
+    assert captured.out == "" and list(tmp_path.iterdir()) == []
+
+
+def test_version(capsys: pytest.CaptureFixture[str]) -> None:
+    with pytest.raises(SystemExit) as info:
+        main(["--version"])
+    assert info.value.code == 0
+    assert capsys.readouterr().out.strip() == f"roomfit {version('roomfit')}"
