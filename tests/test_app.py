@@ -335,6 +335,15 @@ def test_solve_compare_keep_and_check_on_the_page() -> None:
     assert all(v.startswith("0 of ") for v in shown), shown
     table = next(d.value for d in at.dataframe if "metric" in d.value.columns)
     assert [c for c in table.columns if c != "metric"] == [f"Arrangement {i + 1}" for i in range(n)]
+    # the star for walking goes to the least walking, routed again here with score_routes
+    from roomfit.routes import score_routes
+
+    walks = [score_routes(plan.with_layout(c.layout), rules) for c in result.candidates]
+    keys = [(len(w.unreachable), round(w.walking_m_per_day, 1)) for w in walks]
+    walking = table[table["metric"] == "Walking per day"].iloc[0]
+    starred = [i for i in range(n) if walking[f"Arrangement {i + 1}"].endswith("★")]
+    assert starred == ([i for i, k in enumerate(keys) if k == min(keys)] if len(set(keys)) > 1
+                       else [])
     # the furnished plan offered for download reads back as the candidate's layout
     first = solved["shown"][0][0]
     assert loads_plan(dumps_plan(first["row"].plan)).layout == plan.with_layout(
