@@ -335,7 +335,8 @@ def _furniture(plan: Plan, rules: RuleSet) -> None:
             if d is not None:
                 st.caption(f"Catalogue size: {d.width} x {d.depth} x {d.height} mm — {d.source}")
             else:
-                st.caption("A custom piece: enter its sizes from a tape measure.")
+                st.caption("A custom piece: enter its sizes from a tape measure. It keeps no use "
+                           "zone free and may stand anywhere in its rooms.")
             st.form_submit_button("Add to the list", on_click=_add_piece)
     with right:
         st.markdown("**Change a piece**")
