@@ -46,6 +46,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import shapely
 from shapely import MultiPoint, Point, Polygon
+from shapely.affinity import translate
 from shapely.geometry import LineString
 from shapely.geometry.base import BaseGeometry
 from shapely.ops import nearest_points, unary_union
@@ -400,7 +401,31 @@ def _check_doors(ctx: _Ctx) -> list[Finding]:
                            required=0.0, source=src, pieces=(d.id, *ids), room=d.rooms[0],
                            where=_pt(blocked if ids else ds.opening),
                            outline=_outline(clear)))
+        out += _leaf_through_wall(ctx, ds)
     return out
+
+
+def _leaf_through_wall(ctx: _Ctx, ds: geo.DoorShape) -> list[Finding]:
+    """A failing ``door.swing_clear`` when the leaf's sweep runs through the walls of the room
+    it opens into (a 900 mm leaf into a 600 mm deep cupboard): it cannot open fully. Across
+    a thick wall the leaf is taken as hung at the far face, so the wall itself does not count."""
+    d = ds.door
+    room = ctx.rooms.get(d.swings_into or "")
+    if ds.swing is None or room is None:
+        return []
+    swing = ds.swing
+    if d.swings_into != d.rooms[0]:
+        t = room.exterior.distance(Point(d.at))  # the wall's thickness, 0 for a shared wall
+        n = ds.inward[d.swings_into]
+        swing = translate(swing, n[0] * t, n[1] * t)
+    through = swing.difference(room)
+    if through.area <= TOUCH_MM2:
+        return []
+    return [Finding("door.swing_clear", False,
+                    f"the leaf of door {d.id} cannot open fully: its swing runs "
+                    f"{_cm2(through.area)} through the walls of {d.swings_into}",
+                    measured=round(through.area, 1), required=0.0, pieces=(d.id,),
+                    room=d.swings_into, where=_pt(through), outline=_outline(swing))]
 
 
 def _check_windows(ctx: _Ctx) -> list[Finding]:

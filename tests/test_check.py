@@ -529,3 +529,25 @@ def test_rug_lies_under_pieces_and_is_walked_over() -> None:
     outside = replace(rug, placement=Placement(-200, WALL_Y - 500, 0, "r"))
     f = _one(audit(_room_plan((outside,)), rules), "piece.inside", "rug")
     assert not f.ok and f.measured == pytest.approx(200 * 1000)
+
+
+@pytest.mark.parametrize("wall", [0, 200])
+def test_leaf_into_a_shallow_closet_cannot_open(wall: int) -> None:
+    # a 900 mm leaf hinged at x 1200 opening north into a closet 600 mm deep: the quarter
+    # disc of radius 900 pokes past the back wall by the half circular segment at h = 600,
+    # (r^2 acos(h/r) - h sqrt(r^2 - h^2)) / 2 = 139 388 mm2 (by hand); the same across a
+    # 200 mm wall, the leaf hung at the closet's face; swinging into the big room it opens
+    rules = load_ruleset("everyday")
+    base = _room_plan()
+    y0 = ROOM_D + wall
+    closet = Room("closet", "Closet", "storage", ((0, y0), (1500, y0), (1500, y0 + 600),
+                                                  (0, y0 + 600)))
+    door = Door("dc", ("r", "closet"), (750, ROOM_D), 900, Leaf.HINGED, "closet", "left")
+    plan = replace(base, rooms=(*base.rooms, closet), doors=(*base.doors, door))
+    f = _one(audit(plan, rules), "door.swing_clear", "cannot open")
+    r, h = 900, 600
+    by_hand = (r * r * math.acos(h / r) - h * math.sqrt(r * r - h * h)) / 2
+    assert not f.ok and f.room == "closet" and f.measured == pytest.approx(by_hand, rel=0.01)
+    into_room = replace(door, swings_into="r")
+    plan = replace(plan, doors=(*base.doors, into_room))
+    assert all(f.ok for f in audit(plan, rules).by_rule("door.swing_clear"))
