@@ -26,7 +26,7 @@ from shapely.ops import unary_union
 
 from roomfit.catalog import PieceSpec, load_catalog
 from roomfit.geometry import door_shapes, fixture_polygon, fixture_zone, room_polygon
-from roomfit.model import build_model
+from roomfit.model import build_model, tune
 from roomfit.plan import Plan
 from roomfit.rules import RuleSet
 
@@ -95,6 +95,7 @@ def _check(built, solver_params, groups: list[str], deadline: float) -> int:
     solver.parameters.num_workers = 1
     solver.parameters.random_seed = solver_params.seed
     solver.parameters.max_time_in_seconds = max(0.05, min(5.0, deadline - time.monotonic()))
+    tune(solver.parameters)
     status = solver.Solve(m)
     _check.last = solver  # type: ignore[attr-defined]
     return status
@@ -191,6 +192,7 @@ def _smaller(plan: Plan, rules: RuleSet, specs: list[PieceSpec], rooms: list[str
             solver.parameters.num_workers = 1
             solver.parameters.random_seed = options.seed
             solver.parameters.max_time_in_seconds = max(0.05, min(3.0, deadline - time.monotonic()))
+            tune(solver.parameters)
             if solver.Solve(built.model) in (cp_model.FEASIBLE, cp_model.OPTIMAL):
                 out.append(f"a {t.label} ({t.width} x {t.depth} mm) instead of the {spec.label} "
                            f"({spec.width} x {spec.depth} mm) fits")

@@ -36,7 +36,7 @@ from ortools.sat.python import cp_model
 
 from roomfit.catalog import PieceSpec, resolve_pieces
 from roomfit.explain import Explanation, explain, precheck
-from roomfit.model import Built, build_model, decode, differs, room_geometry
+from roomfit.model import Built, build_model, decode, differs, room_geometry, tune
 from roomfit.plan import Layout, Placement, Plan
 from roomfit.rules import RuleSet
 
@@ -223,6 +223,7 @@ def _params(solver: cp_model.CpSolver, options: SolveOptions, seconds: float, wo
     p.random_seed = options.seed
     p.max_time_in_seconds = max(0.01, seconds)
     p.max_deterministic_time = max(0.001, work)
+    tune(p)
 
 
 def _audit(plan: Plan, rules: RuleSet):
