@@ -364,6 +364,27 @@ def _read_windows(r: _Reader, data: dict, rooms: dict[str, Room]) -> list[Window
     return out
 
 
+def _openings_apart(r: _Reader, data: dict, rooms: dict[str, Room], doors: list[Door],
+                    windows: list[Window]) -> None:
+    """Report doors and windows whose openings overlap on a wall (more than 1 mm)."""
+    fields = {t.get("id"): f"{key}[{i}]" for key in ("doors", "windows")
+              for i, t in enumerate(data.get(key) or []) if isinstance(t, dict)}
+    spans = []
+    for what, oid, room, at, width in (
+            [("door", d.id, d.rooms[0], d.at, d.width) for d in doors]
+            + [("window", w.id, w.room, w.at, w.width) for w in windows]):
+        u = wall_direction(rooms[room].outline, at)
+        half = width / 2
+        spans.append((what, oid, LineString([(at[0] - u[0] * half, at[1] - u[1] * half),
+                                             (at[0] + u[0] * half, at[1] + u[1] * half)])))
+    for i, (what_a, a, sa) in enumerate(spans):
+        for what_b, b, sb in spans[i + 1:]:
+            shared = sa.intersection(sb).length
+            if shared > 1.0 and b in fields:
+                r.add(f"{fields[b]}.at", f"the {what_b}'s opening overlaps {what_a} {a!r} by "
+                      f"{shared:.0f} mm", "openings on one wall must stand apart")
+
+
 def _read_fixtures(r: _Reader, data: dict, rooms: dict[str, Room]) -> list[Fixture]:
     out = []
     for f, raw in _array(r, data, "fixtures"):
@@ -566,6 +587,7 @@ def loads_plan(text: str, source: str = "<plan>") -> Plan:
     by_id = {rm.id: rm for rm in rooms}
     doors = _read_doors(r, data, by_id)
     windows = _read_windows(r, data, by_id)
+    _openings_apart(r, data, by_id, doors, windows)
     fixtures = _read_fixtures(r, data, by_id)
     furniture = _read_furniture(r, data, by_id)
     rules = _read_rules(r, data)

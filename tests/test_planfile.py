@@ -197,6 +197,19 @@ def test_opening_across_a_corner_listed_mid_wall() -> None:
     assert "runs 450 mm past the end of its wall" in _problems(data)["doors[0].at"]
 
 
+def test_openings_overlapping_on_a_wall() -> None:
+    # the entrance spans x 1550..2450 on room a's south wall; a window centred at x 2600,
+    # 1000 mm wide, spans 2100..3100: 350 mm of it over the door; moved to x 3000 (2500..3500)
+    # it stands 50 mm clear
+    data = _base()
+    data["windows"].append({"id": "w2", "room": "a", "at": [2600, 0], "width": 1000,
+                            "sill": 900})
+    got = _problems(data)
+    assert got == {"windows[1].at": "the window's opening overlaps door 'd1' by 350 mm"}
+    data["windows"][1]["at"] = [3000, 0]
+    assert len(loads_plan(tomli_w.dumps(data)).windows) == 2
+
+
 def test_door_off_its_wall_says_how_far() -> None:
     data = _base()
     data["doors"][1]["at"] = [3700, 1500]
