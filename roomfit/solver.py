@@ -425,6 +425,8 @@ def solve(plan: Plan, rules: RuleSet, options: SolveOptions | None = None,
     if bare is not None:
         return SolveResult("impossible", (), bare, stats())
 
+    if not groups:  # nothing to place: the bare apartment (with its locked pieces) passed
+        return SolveResult("optimal", (Candidate(plan.layout, 0.0, 0.0, True, 0),), None, stats())
     lanes = max(1, options.workers)
     searches += [_Search(plan, rules, rooms, group_specs, options, clock, progress, counters)
                  for rooms, group_specs in groups]

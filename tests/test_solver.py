@@ -169,6 +169,13 @@ def test_impossible_room_names_the_piece_and_its_clearance() -> None:
     assert any("Single" in f or "without the Double bed" in f for f in e.fixes), e.fixes
 
 
+def test_nothing_to_place() -> None:
+    plan = loads_plan(_room(3000, 3000, []))
+    result = solve(plan, rules_for(plan), SolveOptions(candidates=2, time_limit=2.0))
+    assert result.status == "optimal" and len(result.candidates) == 1
+    assert result.candidates[0].layout == ()
+
+
 def test_piece_larger_than_the_room_is_impossible_without_search() -> None:
     # a 1900 x 2100 mm bed in a 1800 x 2000 mm box room fits neither way round (by hand)
     plan = loads_plan(_room(1800, 2000, [("bed", "bed-double-180")]))
