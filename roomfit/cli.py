@@ -351,11 +351,13 @@ def build_parser() -> argparse.ArgumentParser:
     p = sub.add_parser("solve", help="find furniture arrangements that pass every rule, or say "
                                      "why none exists (exit 1 impossible, 3 time limit)")
     p.add_argument("plan", help="plan file (.toml) with the furniture wanted")
-    p.add_argument("--candidates", type=int, default=3, help="arrangements to find (default 3)")
+    p.add_argument("--candidates", type=int, default=3, metavar="N",
+                   help="arrangements to find (default 3)")
     p.add_argument("--time-limit", type=float, default=20.0, metavar="S",
                    help="seconds for the whole search (default 20)")
     p.add_argument("--rules", metavar="SET", help="rule set to satisfy (default: the plan's)")
-    p.add_argument("--seed", type=int, default=0, help="random seed; same seed, same result")
+    p.add_argument("--seed", type=int, default=0, metavar="K",
+                   help="random seed; same seed, same result")
     p.add_argument("--grid", type=int, default=50, metavar="MM",
                    help="grid (mm) for angled walls, door swings and the turning space (default 50)")
     p.add_argument("-o", "--output", metavar="DIR",
