@@ -221,7 +221,9 @@ def _cmd_solve(args: argparse.Namespace) -> int:
         return EXIT_TIMEOUT
     stem = Path(args.plan).stem
     chosen = replace(plan, rules=RuleChoice(rules.id, plan.rules.overrides))
-    print(f"{'candidate':>9}  {'objective':>9}  {'optimal / gap':>13}  checker  files")
+    from roomfit.routes import score_routes
+
+    print(f"{'candidate':>9}  {'objective':>9}  {'optimal / gap':>13}  {'walking':>10}  checker  files")
     for c in result.candidates:
         furnished = chosen.with_layout(c.layout)
         toml_path = out_dir / f"{stem}-{c.rank + 1}.toml"
@@ -242,7 +244,9 @@ def _cmd_solve(args: argparse.Namespace) -> int:
         ok = sum(f.ok for f in verdict.findings)
         gap = "optimal" if c.optimal else f"gap {c.gap:.0%}"
         check = f"pass {ok}/{len(verdict.findings)}" if verdict.passed else "FAIL"
-        print(f"{c.rank + 1:>9}  {c.objective:>9g}  {gap:>13}  {check:<7}  {', '.join(files)}")
+        walking = f"{score_routes(furnished, rules).walking_m_per_day:.0f} m/day"
+        print(f"{c.rank + 1:>9}  {c.objective:>9g}  {gap:>13}  {walking:>10}  {check:<7}  "
+              f"{', '.join(files)}")
     print(CAUTION)
     return EXIT_OK
 
