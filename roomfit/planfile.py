@@ -368,7 +368,8 @@ def _openings_apart(r: _Reader, data: dict, rooms: dict[str, Room], doors: list[
                     windows: list[Window]) -> None:
     """Report doors and windows whose openings overlap on a wall (more than 1 mm)."""
     fields = {t.get("id"): f"{key}[{i}]" for key in ("doors", "windows")
-              for i, t in enumerate(data.get(key) or []) if isinstance(t, dict)}
+              if isinstance(data.get(key), list)
+              for i, t in enumerate(data[key]) if isinstance(t, dict)}
     spans = []
     for what, oid, room, at, width in (
             [("door", d.id, d.rooms[0], d.at, d.width) for d in doors]
