@@ -369,7 +369,8 @@ def _openings_apart(r: _Reader, data: dict, rooms: dict[str, Room], doors: list[
     """Report doors and windows whose openings overlap on a wall (more than 1 mm)."""
     fields = {t.get("id"): f"{key}[{i}]" for key in ("doors", "windows")
               if isinstance(data.get(key), list)
-              for i, t in enumerate(data[key]) if isinstance(t, dict)}
+              for i, t in enumerate(data[key])
+              if isinstance(t, dict) and isinstance(t.get("id"), str)}
     spans = []
     for what, oid, room, at, width in (
             [("door", d.id, d.rooms[0], d.at, d.width) for d in doors]
