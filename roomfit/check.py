@@ -88,6 +88,10 @@ TOUCH_MM2 = 1.0
 #: common practice: the solver places such pieces flush, a small shortfall allows a piece
 #: that runs past a corner or a door jamb.
 WALL_SHARE = 0.8
+#: Gap (mm) up to which a piece's back still counts as against the wall (``wall.against``);
+#: common practice: a skirting board, or a placement given in inches against a wall whose
+#: position was rounded to the millimetre, leaves a few mm.
+WALL_GAP_MM = 10.0
 #: Precision (mm) of the widest-route search.
 WIDTH_STEP = 5.0
 #: A passage this much narrower (mm) than asked still counts as wide enough, so that a hall
@@ -313,7 +317,7 @@ def _check_walls(ctx: _Ctx) -> list[Finding]:
         if not pc.spec.against_wall or pc.placement.room not in ctx.rooms:
             continue
         edge = _back_edge(pc.shape, pc.placement.rotation)
-        wall = ctx.rooms[pc.placement.room].boundary.buffer(TOUCH_MM, cap_style="flat")
+        wall = ctx.rooms[pc.placement.room].boundary.buffer(WALL_GAP_MM, cap_style="flat")
         on = edge.intersection(wall).length
         share = on / edge.length
         ok = share >= WALL_SHARE - 1e-9

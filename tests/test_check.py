@@ -405,6 +405,17 @@ def test_against_wall_detection() -> None:
     assert not f.ok and f.measured == 0
 
 
+@pytest.mark.parametrize(("gap", "ok"), [(2, True), (10, True), (11, False)])
+def test_against_wall_allows_a_few_millimetres(gap: int, ok: bool) -> None:
+    # a queen bed placed at y = 90 in = 2286 mm with its 2132 mm depth ends at 4418 mm, 2 mm
+    # short of a wall at 14 ft 6 in = 4419.6 -> 4420 mm (1 in = 25.4 mm): still against it;
+    # up to 10 mm (common practice, a skirting board) passes, 11 mm does not
+    rules = load_ruleset("everyday")
+    bed = Piece("bed", "bed-us-queen", ("r",),
+                placement=Placement(1000, ROOM_D - gap - 2132, 180, "r"))
+    assert _one(audit(_room_plan((bed,), fixtures=False), rules), "wall.against", "bed").ok is ok
+
+
 def test_piece_room_and_unplaced() -> None:
     rules = load_ruleset("everyday")
     loose = Piece("loose", "custom", ("r",), width=500, depth=500, height=500)
