@@ -465,6 +465,10 @@ def _read_furniture(r: _Reader, data: dict, rooms: dict[str, Room]) -> list[Piec
         access = r.text(t, "access", f)
         if access is not None and access not in ("both", "left", "right"):
             r.add(f"{f}.access", f"unknown access {access!r}", "use both, left or right")
+        elif access is not None and ptype is not None and (
+                ptype == "custom" or load_catalog()[ptype].category != "bed"):
+            r.add(f"{f}.access", f"access applies to beds only, not to a {ptype!r} piece",
+                  "leave access out")
         locked = t.get("locked", False)
         if not isinstance(locked, bool):
             r.add(f"{f}.locked", f"expected true or false, found {_kind(locked)}")

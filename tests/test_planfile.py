@@ -210,6 +210,17 @@ def test_openings_overlapping_on_a_wall() -> None:
     assert len(loads_plan(tomli_w.dumps(data)).windows) == 2
 
 
+def test_access_is_for_beds_only() -> None:
+    # plan format: access keeps a bed's long sides free; on a sofa or a custom piece it would
+    # silently do nothing (or, on a round table, drop two of its seats)
+    data = _base()
+    data["furniture"][0]["access"] = "left"
+    assert loads_plan(tomli_w.dumps(data)).furniture[0].access == "left"
+    for ptype in ("sofa-2", "dining-table-round-4"):
+        data["furniture"][0]["type"] = ptype
+        assert "access applies to beds only" in _problems(data)["furniture[0].access"]
+
+
 def test_door_off_its_wall_says_how_far() -> None:
     data = _base()
     data["doors"][1]["at"] = [3700, 1500]
