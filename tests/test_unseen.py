@@ -157,6 +157,8 @@ def test_outputs_never_replace_the_input_or_a_folder(tmp_path: Path,
     # a 1900 x 2100 mm bed in a 1500 x 2600 mm room fits neither way round (1900 > 1500,
     # 2100 > 1500): provably impossible
     ("tiny-bed", {1}),
+    # no furniture, and the bare flat passes the audit (check exits 0): its layout is found
+    ("no-hall", {0}),
 ])
 def test_solve_small_unseen_plans(stem: str, codes: set[int], tmp_path: Path,
                                   capsys: pytest.CaptureFixture[str]) -> None:
