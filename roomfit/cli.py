@@ -29,16 +29,22 @@ CAUTION = ("Caution: these results are advisory. Local building codes, the acces
 EXIT_OK, EXIT_FAIL, EXIT_BAD_INPUT, EXIT_TIMEOUT = 0, 1, 2, 3
 
 
+def _count(items: Sequence[object], word: str) -> str:
+    """``"1 room"``, ``"3 rooms"``."""
+    return f"{len(items)} {word}{'' if len(items) == 1 else 's'}"
+
+
 def _cmd_validate(args: argparse.Namespace) -> int:
     plan = read_plan(args.plan)
     rules = rules_for(plan)
     placed = sum(p.placement is not None for p in plan.furniture)
     print(f"{args.plan}: valid plan {plan.name!r}")
-    print(f"  {len(plan.rooms)} rooms, {len(plan.doors)} doors, {len(plan.windows)} windows, "
-          f"{len(plan.fixtures)} fittings, {len(plan.furniture)} pieces ({placed} placed), "
-          f"{len(plan.routines)} routine trips")
+    print(f"  {_count(plan.rooms, 'room')}, {_count(plan.doors, 'door')}, "
+          f"{_count(plan.windows, 'window')}, {_count(plan.fixtures, 'fitting')}, "
+          f"{_count(plan.furniture, 'piece')} ({placed} placed), "
+          f"{_count(plan.routines, 'routine trip')}")
     print(f"  rule set: {rules.id} ({rules.label})"
-          + (f", {len(rules.overridden)} values overridden" if rules.overridden else ""))
+          + (f", {_count(rules.overridden, 'value')} overridden" if rules.overridden else ""))
     return EXIT_OK
 
 
@@ -136,7 +142,7 @@ def _cmd_draw(args: argparse.Namespace) -> int:
     plan, rules = _plan_and_rules(args)
     out = atomic_write(args.output, draw_svg(plan, rules, title=args.title))
     placed = sum(p.placement is not None for p in plan.furniture)
-    print(f"{out}: drawing of {plan.name!r} to scale (1 unit = 1 mm), {len(plan.rooms)} rooms, "
+    print(f"{out}: drawing of {plan.name!r} to scale (1 unit = 1 mm), {_count(plan.rooms, 'room')}, "
           f"{placed} of {len(plan.furniture)} pieces placed, rule set {rules.id}")
     print(CAUTION)
     return EXIT_OK
@@ -150,7 +156,7 @@ def _cmd_export(args: argparse.Namespace) -> int:
     plan, rules = _plan_and_rules(args)
     collection = to_geojson(plan, rules)
     out = atomic_write(args.output, json.dumps(collection, indent=1, ensure_ascii=False) + "\n")
-    print(f"{out}: GeoJSON of {plan.name!r}, {len(collection['features'])} features, "
+    print(f"{out}: GeoJSON of {plan.name!r}, {_count(collection['features'], 'feature')}, "
           "local coordinates in metres (x east, y north; not longitude/latitude)")
     print(CAUTION)
     return EXIT_OK

@@ -26,3 +26,10 @@ def test_version(capsys: pytest.CaptureFixture[str]) -> None:
         main(["--version"])
     assert info.value.code == 0
     assert capsys.readouterr().out.strip() == f"roomfit {version('roomfit')}"
+
+
+def test_validate_counts_in_words(capsys: pytest.CaptureFixture[str]) -> None:
+    # tiny-bed: one room, one door, no window, no fitting, one piece not placed, no routine
+    assert main(["validate", str(PLAN)]) == 0
+    assert ("  1 room, 1 door, 0 windows, 0 fittings, 1 piece (0 placed), 0 routine trips"
+            in capsys.readouterr().out.splitlines())
