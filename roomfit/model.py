@@ -43,7 +43,7 @@ from shapely import box
 from shapely.geometry import Polygon
 from shapely.geometry.base import BaseGeometry
 
-from roomfit.catalog import PieceSpec
+from roomfit.catalog import PieceSpec, ZoneReq
 from roomfit.geometry import (
     door_shapes,
     fixture_polygon,
@@ -367,17 +367,20 @@ def _positions(lo: int, hi: int, grid: int, extra: set[int]) -> set[int]:
     return vals | {v for v in extra if lo <= v <= hi}
 
 
-def _zone_rect_expr(pv: PieceVars, rot: int, side: str, depth: int):
-    """Zone of ``pv`` at ``rot`` as (x start expr, x size, y start expr, y size)."""
+def _zone_rect_expr(pv: PieceVars, rot: int, z: ZoneReq):
+    """Zone ``z`` of ``pv`` at ``rot`` as (x start expr, x size, y start expr, y size); a side
+    zone leaves out ``z.inset`` at the piece's back end, as ``geometry.zone_polygon`` does."""
     w, d = pv.size(rot)
-    dx, dy = side_direction(side, rot)
-    if dx == 1:
-        return pv.x + w, depth, pv.y, d
-    if dx == -1:
-        return pv.x - depth, depth, pv.y, d
-    if dy == 1:
-        return pv.x, w, pv.y + d, depth
-    return pv.x, w, pv.y - depth, depth
+    dx, dy = side_direction(z.side, rot)
+    bx, by = side_direction("back", rot)
+    depth, cut = z.depth, z.inset
+    if dx != 0:
+        y0 = pv.y + cut if by == -1 else pv.y
+        ylen = d - cut if by != 0 else d
+        return (pv.x + w if dx == 1 else pv.x - depth), depth, y0, ylen
+    x0 = pv.x + cut if bx == -1 else pv.x
+    xlen = w - cut if bx != 0 else w
+    return x0, xlen, (pv.y + d if dy == 1 else pv.y - depth), depth
 
 
 def build_model(
@@ -546,7 +549,7 @@ def build_model(
                 for z in pv.spec.zones:
                     if z.depth <= 0:
                         continue
-                    sx, wx, sy, wy = _zone_rect_expr(pv, rot, z.side, z.depth)
+                    sx, wx, sy, wy = _zone_rect_expr(pv, rot, z)
                     m.Add(sx >= bx0).OnlyEnforceIf(pres)
                     m.Add(sx + wx <= bx1).OnlyEnforceIf(pres)
                     m.Add(sy >= by0).OnlyEnforceIf(pres)

@@ -310,3 +310,31 @@ def test_cli_solve_exit_codes(tmp_path: Path, capsys) -> None:
     hard.write_text(_room(4000, 4000, [("bed", "bed-single-90"), ("desk", "desk")]))
     assert main(["solve", str(hard), "--time-limit", "0.001", "-o", str(tmp_path / "b")]) == 3
     assert "NOT proven impossible" in capsys.readouterr().out
+
+
+def test_model_zones_match_the_checker_zones_for_every_rotation():
+    # The model's zone rectangles (CP-SAT expressions) must equal geometry.zone_polygon's,
+    # including a bed's side zones that leave the head end free (head_clear).
+    from shapely import box
+
+    from roomfit.catalog import load_catalog, resolve_piece
+    from roomfit.geometry import zone_polygon
+    from roomfit.model import _zone_rect_expr
+    from roomfit.plan import Piece, Placement
+    from roomfit.rules import load_ruleset
+
+    spec = resolve_piece(Piece("b", "bed-double-160", ("r",)), load_ruleset("everyday"),
+                         load_catalog())
+
+    class _At:
+        def __init__(self, x, y):
+            self.x, self.y = x, y
+
+        def size(self, rot):
+            return (spec.width, spec.depth) if rot in (0, 180) else (spec.depth, spec.width)
+
+    for rot in (0, 90, 180, 270):
+        for z in spec.zones:
+            sx, wx, sy, wy = _zone_rect_expr(_At(1000, 2000), rot, z)
+            want = zone_polygon(spec, Placement(1000, 2000, rot, "r"), z)
+            assert box(sx, sy, sx + wx, sy + wy).equals(want), (rot, z.side)
