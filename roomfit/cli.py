@@ -29,6 +29,11 @@ CAUTION = ("Caution: these results are advisory. Local building codes, the acces
 EXIT_OK, EXIT_FAIL, EXIT_BAD_INPUT, EXIT_TIMEOUT = 0, 1, 2, 3
 
 
+def _titled(plan: Plan) -> str:
+    """The plan's name quoted, or ``(no name)`` when the file gives none."""
+    return repr(plan.name) if plan.name else "(no name)"
+
+
 def _count(items: Sequence[object], word: str) -> str:
     """``"1 room"``, ``"3 rooms"``."""
     return f"{len(items)} {word}{'' if len(items) == 1 else 's'}"
@@ -38,7 +43,7 @@ def _cmd_validate(args: argparse.Namespace) -> int:
     plan = read_plan(args.plan)
     rules = rules_for(plan)
     placed = sum(p.placement is not None for p in plan.furniture)
-    print(f"{args.plan}: valid plan {plan.name!r}")
+    print(f"{args.plan}: valid plan {_titled(plan)}")
     print(f"  {_count(plan.rooms, 'room')}, {_count(plan.doors, 'door')}, "
           f"{_count(plan.windows, 'window')}, {_count(plan.fixtures, 'fitting')}, "
           f"{_count(plan.furniture, 'piece')} ({placed} placed), "
@@ -142,7 +147,7 @@ def _cmd_draw(args: argparse.Namespace) -> int:
     plan, rules = _plan_and_rules(args)
     out = atomic_write(args.output, draw_svg(plan, rules, title=args.title))
     placed = sum(p.placement is not None for p in plan.furniture)
-    print(f"{out}: drawing of {plan.name!r} to scale (1 unit = 1 mm), {_count(plan.rooms, 'room')}, "
+    print(f"{out}: drawing of {_titled(plan)} to scale (1 unit = 1 mm), {_count(plan.rooms, 'room')}, "
           f"{placed} of {len(plan.furniture)} pieces placed, rule set {rules.id}")
     print(CAUTION)
     return EXIT_OK
@@ -156,7 +161,7 @@ def _cmd_export(args: argparse.Namespace) -> int:
     plan, rules = _plan_and_rules(args)
     collection = to_geojson(plan, rules)
     out = atomic_write(args.output, json.dumps(collection, indent=1, ensure_ascii=False) + "\n")
-    print(f"{out}: GeoJSON of {plan.name!r}, {_count(collection['features'], 'feature')}, "
+    print(f"{out}: GeoJSON of {_titled(plan)}, {_count(collection['features'], 'feature')}, "
           "local coordinates in metres (x east, y north; not longitude/latitude)")
     print(CAUTION)
     return EXIT_OK
@@ -181,7 +186,7 @@ def _cmd_check(args: argparse.Namespace) -> int:
                   "caution": CAUTION}
         print(json.dumps(record, indent=2, ensure_ascii=False))
     else:
-        print(f"{args.plan}: audit of {plan.name!r}")
+        print(f"{args.plan}: audit of {_titled(plan)}")
         print(summary_text(result, rules))
         if args.draw:
             print(f"drawing with {len(result.failures)} failures marked: {args.draw}")

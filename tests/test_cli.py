@@ -33,3 +33,10 @@ def test_validate_counts_in_words(capsys: pytest.CaptureFixture[str]) -> None:
     assert main(["validate", str(PLAN)]) == 0
     assert ("  1 room, 1 door, 0 windows, 0 fittings, 1 piece (0 placed), 0 routine trips"
             in capsys.readouterr().out.splitlines())
+
+
+def test_a_plan_without_a_name_says_so(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    plan = tmp_path / "nameless.toml"
+    plan.write_text(PLAN.read_text().replace('name = "Box room, 6 Narrow Close (invented)"\n', ""))
+    assert main(["validate", str(plan)]) == 0
+    assert capsys.readouterr().out.splitlines()[0] == f"{plan}: valid plan (no name)"
