@@ -119,7 +119,8 @@ def _amount(rule: str, v: float | None) -> str:
 def _finding_row(f) -> str:  # noqa: ANN001 - a check.Finding
     state = "<span class='pass'>pass</span>" if f.ok else "<span class='fail'>FAIL</span>"
     return (f"<tr><td>{escape(f.rule)}</td><td>{state}</td><td>{escape(f.message)}</td>"
-            f"<td>{_amount(f.rule, f.measured)}</td><td>{_amount(f.rule, f.required)}</td>"
+            f"<td>{_amount(f.rule, f.measured)}</td>"
+            f"<td>{'none' if f.rule in AREA_RULES and f.required == 0 else _amount(f.rule, f.required)}</td>"
             f"<td>{escape(f.source) or 'geometry'}</td></tr>")
 
 
