@@ -359,7 +359,8 @@ def build_parser() -> argparse.ArgumentParser:
     p = sub.add_parser("check", help="audit a furnished plan: clearances, circulation, turning "
                                      "space (exit 1 when a rule fails)")
     p.add_argument("plan", help="plan file (.toml) with furniture placed")
-    p.add_argument("--rules", metavar="SET", help="rule set to audit against (default: the plan's)")
+    p.add_argument("--rules", metavar="SET", help="rule set to audit against, keeping the plan's overrides "
+                   "(default: the plan's)")
     p.add_argument("--json", action="store_true", help="print the findings as JSON")
     p.add_argument("--draw", metavar="SVG", help="also write the plan with the failures marked")
     p.set_defaults(func=_cmd_check)
@@ -370,7 +371,8 @@ def build_parser() -> argparse.ArgumentParser:
                    help="arrangements to find (default 3)")
     p.add_argument("--time-limit", type=float, default=20.0, metavar="S",
                    help="seconds for the whole search (default 20)")
-    p.add_argument("--rules", metavar="SET", help="rule set to satisfy (default: the plan's)")
+    p.add_argument("--rules", metavar="SET", help="rule set to satisfy, keeping the plan's overrides "
+                   "(default: the plan's)")
     p.add_argument("--seed", type=int, default=0, metavar="K",
                    help="random seed; same seed, same result")
     p.add_argument("--grid", type=int, default=50, metavar="MM",
