@@ -484,8 +484,12 @@ def _title_block(c: _Canvas, plan: Plan, rules: RuleSet, title: str | None, top:
             left.append((f"{label}: {v}", 10, "normal"))
     right = [(f"Rule set: {rules.id}, {rules.label}", 10, "normal"),
              ("Drawn to scale, 1 unit = 1 mm; north up", 10, "normal")]
+    # the left column ends where the right one starts (56 % across): long names wrap
+    column_px = width_px * 0.56 - 14 - 12
+    left = [(part, size, weight) for s, size, weight in left
+            for part in _wrap(s, column_px, size * (1.1 if weight == "bold" else 1.0))]
     caution = _wrap(_CAUTION, width_px - 2 * 14, 9)
-    rows = max(len(left) + 0.25, len(right) + 2.2)
+    rows = max(sum(1.25 if size > 12 else 1 for _, size, _ in left), len(right) + 2.2)
     height = pad * 2 + rows * line + len(caution) * c.px(12) + c.px(6)
     c.add(f'<g class="title-block"><rect x="{_num(c.px(6))}" y="{_num(top)}" '
           f'width="{_num(width - c.px(12))}" height="{_num(height)}" fill="#ffffff" '

@@ -230,3 +230,21 @@ def test_rugs_are_drawn_under_the_pieces_standing_on_them() -> None:
     root = _svg(replace(plan, furniture=(plan.furniture[0], table, rug)))
     order = [e.get("id") for e in root.iter(f"{{{NS['s']}}}g") if "piece" in e.get("class", "")]
     assert order.index("piece-rug") < order.index("piece-table")
+
+
+def test_long_headline_wraps_inside_the_title_block() -> None:
+    # a long headline used to run on under the rule-set column; wrapped, all of it is kept
+    # and every line of the left column stays above the rule under the block's top part
+    plan = read_plan(Path(__file__).parent / "plans_unseen" / "seven-rooms.toml")
+    title = "Seven rooms, 101 Orchard Terrace (invented): candidate 1 of 3, the quiet one"
+    root = _svg(plan, title=title)
+    block = next(e for e in root.iter(f"{{{NS['s']}}}g") if e.get("class") == "title-block")
+    bold = [t for t in block.iter(f"{{{NS['s']}}}text") if t.get("font-weight") == "bold"]
+    assert len(bold) >= 2 and " ".join(t.text or "" for t in bold) == title
+    _, _, w, _ = _viewbox(root)
+    rule = max(block.iter(f"{{{NS['s']}}}line"),
+               key=lambda e: float(e.get("x2", "0")) - float(e.get("x1", "0")))
+    rule_y = float(rule.get("y1", "0"))
+    left = [t for t in block.iter(f"{{{NS['s']}}}text")
+            if "caution" not in t.get("class", "") and float(t.get("x", "0")) < w / 2]
+    assert left and all(float(t.get("y", "0")) < rule_y for t in left)
