@@ -22,7 +22,7 @@ from typing import Any
 
 import streamlit as st
 
-from roomfit import page
+from roomfit import compare, draw, page, report, solver
 from roomfit.catalog import load_catalog, resolve_pieces
 from roomfit.cli import CAUTION
 from roomfit.errors import RoomfitError
@@ -36,12 +36,6 @@ PLANS = ROOT / "plans"
 DEFAULT_SAMPLE = "studio.toml"  # the smallest sample opens first
 LOG = logging.getLogger("roomfit.app")
 
-draw = page.optional_module("draw")
-check = page.optional_module("check")
-solver = page.optional_module("solver")
-routes = page.optional_module("routes")
-compare = page.optional_module("compare")
-report = page.optional_module("report")
 
 _CSS = """
 <style>
@@ -136,10 +130,6 @@ def _panel(name: str) -> Iterator[None]:
 
 def _caution() -> None:
     st.markdown(f'<div class="rf-caution">{CAUTION}</div>', unsafe_allow_html=True)
-
-
-def _unavailable(what: str) -> None:
-    st.info(f"{what} is not available in this version of roomfit.")
 
 
 def _show_svg(svg: str) -> None:
@@ -303,10 +293,7 @@ def _overview(plan: Plan, rules: RuleSet) -> None:
                      hide_index=True)
         st.caption("Furniture is drawn where the plan puts it; the Furniture tab lists it.")
     with left:
-        if draw is None:
-            _unavailable("The drawing")
-        else:
-            _show_svg(_memo("overview", plan, lambda: draw.draw_svg(plan, rules, title=plan.name)))
+        _show_svg(_memo("overview", plan, lambda: draw.draw_svg(plan, rules, title=plan.name)))
 
 
 def _furniture(plan: Plan, rules: RuleSet) -> None:
@@ -429,9 +416,6 @@ def _present(row: Any, index: int) -> dict[str, Any]:
 
 def _solve(plan: Plan, rules: RuleSet) -> None:
     s = _state()
-    if solver is None:
-        _unavailable("Finding arrangements")
-        return
     c1, c2, c3 = st.columns(3)
     n = c1.slider("How many arrangements", 2, 4, 3, key="n_candidates")
     limit = c2.slider("Time limit (s)", 5, 120, 20, step=5, key="time_limit")
@@ -470,9 +454,6 @@ def _results(done: dict[str, Any]) -> None:
                              if outcome.details else ""))
     _caution()
     if not result.candidates:
-        return
-    if compare is None or report is None:
-        _unavailable("Comparing arrangements")
         return
     if done["shown"] is None:
         with st.spinner("Checking and drawing each arrangement…"):
@@ -524,9 +505,6 @@ def _downloads(plan: Plan, a: dict[str, Any], key: str, suffix: str) -> None:
 
 
 def _audit(plan: Plan, rules: RuleSet) -> None:
-    if compare is None or report is None:
-        _unavailable("Checking an arrangement")
-        return
     if not plan.layout:
         st.info("No piece has a place yet. Bring a furnished plan file, or keep one of the "
                 "arrangements found, then check it here.")

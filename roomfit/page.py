@@ -19,13 +19,11 @@ kept until an edit is valid.
 
 from __future__ import annotations
 
-import importlib
 import queue
 import threading
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass, replace
 from pathlib import Path
-from types import ModuleType
 from typing import Any, TypeVar
 
 from roomfit.catalog import load_catalog, resolve_pieces
@@ -39,7 +37,6 @@ __all__ = [
     "EDITED_SOURCE",
     "OVERRIDABLE",
     "Outcome",
-    "optional_module",
     "sample_files",
     "plan_from_upload",
     "error_lines",
@@ -70,18 +67,6 @@ EDITED_SOURCE = "plan edited on the page"
 #: Rule values the page offers to override directly, in the order shown. Any other rule can
 #: still be overridden in the plan file's ``[rules.overrides]`` table.
 OVERRIDABLE = ("route.width", "turning.size", "door.min_width")
-
-
-def optional_module(name: str) -> ModuleType | None:
-    """Import ``roomfit.<name>`` if it exists and loads; None otherwise.
-
-    The page shows a "not available" note for a panel whose module is missing, instead of
-    failing as a whole.
-    """
-    try:
-        return importlib.import_module(f"roomfit.{name}")
-    except Exception:  # noqa: BLE001 - a missing or broken stage must not take the page down
-        return None
 
 
 def sample_files(folder: str | Path) -> list[Path]:

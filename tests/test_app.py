@@ -304,7 +304,6 @@ def _markdown(at: AppTest) -> str:
     return "\n".join(m.value for m in at.markdown)
 
 
-@pytest.mark.skipif(page.optional_module("solver") is None, reason="roomfit.solver not available")
 def test_solve_compare_keep_and_check_on_the_page() -> None:
     from roomfit.check import audit
 
@@ -358,7 +357,6 @@ def test_solve_compare_keep_and_check_on_the_page() -> None:
     assert any(s.value.startswith("All ") and "rule checks pass" in s.value for s in at.success)
 
 
-@pytest.mark.skipif(page.optional_module("solver") is None, reason="roomfit.solver not available")
 def test_impossible_plan_shows_the_reason_and_keeps_running() -> None:
     at = _app()
     at.sidebar.file_uploader[0].set_value(("box.toml", TOO_SMALL, "application/toml"))
