@@ -242,7 +242,7 @@ def _draw_fittings(c: _Canvas, plan: Plan) -> None:
         c.add(f'<polygon points="{c.pts(f.outline)}" fill="url(#rf-hatch)" '
               f'stroke="{STYLE["fitting"]}" stroke-width="{_num(c.px(1.5))}"/>')
         poly = fixture_polygon(f)
-        lp = polylabel(poly, tolerance=10)
+        lp = _middle(poly)
         minx, miny, maxx, maxy = poly.bounds
         label, size, vertical = _fit_label(f.label, f.id, maxx - minx, maxy - miny, c.upp)
         c.add(c.text(lp.x, lp.y, label, size, fill=STYLE["fitting"], halo=True, rotate=vertical))
@@ -387,8 +387,20 @@ def _label_point(room: Polygon, taken: list[BaseGeometry]) -> tuple[float, float
         g for g in getattr(free, "geoms", []) if isinstance(g, Polygon)]
     parts = [p for p in parts if p.area > 0]
     best = max(parts, key=lambda p: p.area) if parts else room
-    lp = polylabel(best, tolerance=10)
+    lp = _middle(best)
     return lp.x, lp.y
+
+
+def _middle(poly: Polygon) -> Point:
+    """A label point: the point farthest from the edges (``polylabel``), or the centroid when
+    that is as far (a long strip has a whole line of farthest points, and ``polylabel`` may
+    pick one near an end, pushing a centred label past the shape)."""
+    lp = polylabel(poly, tolerance=10)
+    cen = poly.centroid
+    edge = poly.exterior
+    if poly.contains(cen) and edge.distance(cen) >= edge.distance(lp) - 10:
+        return cen
+    return lp
 
 
 def _draw_room_labels(c: _Canvas, plan: Plan, taken: dict[str, list[BaseGeometry]]) -> None:

@@ -248,3 +248,15 @@ def test_long_headline_wraps_inside_the_title_block() -> None:
     left = [t for t in block.iter(f"{{{NS['s']}}}text")
             if "caution" not in t.get("class", "") and float(t.get("x", "0")) < w / 2]
     assert left and all(float(t.get("y", "0")) < rule_y for t in left)
+
+
+def test_label_of_a_long_fitting_sits_in_its_middle() -> None:
+    # a 4000 x 600 mm kitchen run: every point of its centre line is 300 mm from the edges;
+    # the label goes to the middle of that line, not near an end where it would run past
+    plan = read_plan(Path(__file__).parent / "plans_unseen" / "seven-rooms.toml")
+    root = _svg(plan)
+    run = next(e for e in root.iter(f"{{{NS['s']}}}g") if e.get("id") == "fitting-run")
+    outline = [e for e in run.iter(f"{{{NS['s']}}}polygon") if "zone" not in e.get("class", "")][0]
+    xs = [float(v) for v in re.split(r"[ ,]+", outline.get("points", "").strip())[::2]]
+    label = next(run.iter(f"{{{NS['s']}}}text"))
+    assert float(label.get("x", "0")) == pytest.approx((min(xs) + max(xs)) / 2, abs=1)
