@@ -71,6 +71,8 @@ __all__ = [
     "cross_thickness",
     "ROUTE_MARGIN",
     "GRID_DOMAINS",
+    "facing_range",
+    "hint",
 ]
 
 Rect = tuple[int, int, int, int]
@@ -570,11 +572,12 @@ def build_model(
             _no_overlap(m, tall + [_fixed_box(m, rect, lit) for rect in rects])
 
         if strengthen:
-            _gap_rules(m, pieces, g, route, grid)
+            _gap_rules(m, pieces, g, route, grid, _related_pairs(pieces))
 
     has_obj = False
     if objective:
-        has_obj = _objective(m, pieces, geo, prefs)
+        runs = tuple(f for f in plan.fixtures if f.kind == "kitchen_run" and f.room in geo)
+        has_obj = _objective(m, pieces, geo, prefs, runs)
     return Built(m, pieces, geo, groups, has_obj, route)
 
 
@@ -606,15 +609,30 @@ def _turning_boxes(m: cp_model.CpModel, g: RoomGeo, size: int, shape: str, grid:
     ]
 
 
-def _gap_rules(m: cp_model.CpModel, pieces: list[PieceVars], g: RoomGeo, route: int, grid: int) -> None:
+def _related_pairs(pieces: list[PieceVars]) -> set[frozenset[str]]:
+    """Pairs of piece ids tied by an ``in_front`` or ``beside_head`` relation: the gap between
+    them is the relation's (a coffee table's reach from the seat), not a walkway."""
+    out = set()
+    for pv in pieces:
+        for relation, target in pv.spec.relations:
+            if relation in ("in_front", "beside_head"):
+                out |= {frozenset((pv.spec.id, t.spec.id)) for t in pieces if t.spec.category == target}
+    return out
+
+
+def _gap_rules(m: cp_model.CpModel, pieces: list[PieceVars], g: RoomGeo, route: int, grid: int,
+               skip: set[frozenset[str]] = frozenset()) -> None:
     """Two footprints in one room nearly touch (gaps at most ``grid`` both ways) or stand
-    ``route`` apart on one axis; the same between a piece and the room's walls and fittings."""
+    ``route`` apart on one axis; the same between a piece and the room's walls and fittings.
+    Pairs in ``skip`` (related pieces) may stand at any distance."""
     r = g.room.id
     here = [pv for pv in pieces if any(k[0] == r for k in pv.alts)]
     near = grid
     for i, p in enumerate(here):
         pxe, pye = p.ends(m)
         for q in here[i + 1:]:
+            if frozenset((p.spec.id, q.spec.id)) in skip:
+                continue
             qxe, qye = q.ends(m)
             opts = [m.NewBoolVar("") for _ in range(5)]
             m.Add(qxe + route <= p.x).OnlyEnforceIf(opts[0])
@@ -686,7 +704,163 @@ def _l1(m: cp_model.CpModel, ax, ay, bx, by, scale: int) -> cp_model.IntVar:
     return d
 
 
-def _objective(m: cp_model.CpModel, pieces: list[PieceVars], geo: dict[str, RoomGeo], prefs: dict) -> bool:
+def _lo(pv: PieceVars, axis: int):
+    """The footprint's low edge along ``axis`` (0: x, 1: y)."""
+    return pv.x if axis == 0 else pv.y
+
+
+def _hi(m: cp_model.CpModel, pv: PieceVars, axis: int):
+    """The footprint's high edge along ``axis`` (0: x, 1: y)."""
+    return pv.ends(m)[axis]
+
+
+def _mid2(pv: PieceVars, axis: int):
+    """Twice the footprint's centre along ``axis``."""
+    return _centre2(pv)[axis]
+
+
+def _gap_in(m: cp_model.CpModel, near: PieceVars, far: PieceVars, axis: int, sign: int,
+            lo: int, hi: int, lit: cp_model.IntVar) -> None:
+    """Under ``lit``: ``far`` stands beyond ``near``'s side facing ``sign`` along ``axis``,
+    ``lo`` to ``hi`` mm from it."""
+    gap = (_lo(far, axis) - _hi(m, near, axis)) if sign > 0 else (_lo(near, axis) - _hi(m, far, axis))
+    m.Add(gap >= lo).OnlyEnforceIf(lit)
+    m.Add(gap <= hi).OnlyEnforceIf(lit)
+
+
+def _on_axis(m: cp_model.CpModel, a: PieceVars, b: PieceVars, axis: int, tol: int,
+             lit: cp_model.IntVar) -> None:
+    """Under ``lit``: the centres of ``a`` and ``b`` lie within ``tol`` mm along ``axis``."""
+    m.Add(_mid2(a, axis) - _mid2(b, axis) <= 2 * tol).OnlyEnforceIf(lit)
+    m.Add(_mid2(b, axis) - _mid2(a, axis) <= 2 * tol).OnlyEnforceIf(lit)
+
+
+def _either(m: cp_model.CpModel, options: list[cp_model.IntVar]) -> cp_model.IntVar:
+    """A literal that may be true only when one of ``options`` is (false when there is none)."""
+    ok = m.NewBoolVar("")
+    if options:
+        m.AddBoolOr(options).OnlyEnforceIf(ok)
+    else:
+        m.Add(ok == 0)
+    return ok
+
+
+def _axis_sign(d: tuple[int, int]) -> tuple[int, int]:
+    return (0, d[0]) if d[0] != 0 else (1, d[1])
+
+
+def facing_range(seat: PieceSpec, tv: PieceSpec) -> tuple[int, int]:
+    """Distance (mm) from a seat's front to a facing TV's front: ``view_min`` to ``view_max``
+    screen diagonals (catalogue data, with its sources); (0, 0) when either is not given."""
+    if not tv.screen or not seat.view_max:
+        return 0, 0
+    return math.ceil(seat.view_min * tv.screen), math.floor(seat.view_max * tv.screen)
+
+
+def _facing(m: cp_model.CpModel, seat: PieceVars, tv: PieceVars, tol: int) -> cp_model.IntVar | None:
+    """A literal that implies: the seat's front faces the TV's front (opposite turns, one room),
+    their centre lines within ``tol`` mm, the fronts the viewing range apart."""
+    lo, hi = facing_range(seat.spec, tv.spec)
+    if hi <= 0:
+        return None
+    options = []
+    for (r, rot), lit in seat.alts.items():
+        tlit = tv.alts.get((r, (rot + 180) % 360))
+        if tlit is None:
+            continue
+        p = m.NewBoolVar("")
+        m.AddImplication(p, lit)
+        m.AddImplication(p, tlit)
+        axis, sign = _axis_sign(side_direction("front", rot))
+        _gap_in(m, seat, tv, axis, sign, lo, hi, p)
+        _on_axis(m, seat, tv, 1 - axis, tol, p)
+        options.append(p)
+    return _either(m, options)
+
+
+def _in_front(m: cp_model.CpModel, table: PieceVars, seat: PieceVars, tol: int) -> cp_model.IntVar:
+    """A literal that implies: ``table`` stands in front of ``seat`` on its centre line, its
+    gap from the seat's front within the catalogue's gap_min..gap_max, moved out to the seat's
+    front use zone when the rule set asks more (the zone is kept free of furniture)."""
+    zone = max((z.depth for z in seat.spec.zones if z.side == "front"), default=0)
+    lo = max(table.spec.gap_min, zone)
+    hi = max(table.spec.gap_max, lo + 100)
+    options = []
+    for (r, rot), lit in seat.alts.items():
+        tlits = [t for (tr, _), t in table.alts.items() if tr == r]
+        if not tlits:
+            continue
+        p = m.NewBoolVar("")
+        m.AddImplication(p, lit)
+        m.AddBoolOr(tlits).OnlyEnforceIf(p)
+        axis, sign = _axis_sign(side_direction("front", rot))
+        _gap_in(m, seat, table, axis, sign, lo, hi, p)
+        _on_axis(m, seat, table, 1 - axis, tol, p)
+        options.append(p)
+    return _either(m, options)
+
+
+def _beside_head(m: cp_model.CpModel, stand: PieceVars, bed: PieceVars) -> cp_model.IntVar:
+    """A literal that implies: ``stand`` stands beside one long side of ``bed`` (gap_min to
+    gap_max mm from it), its centre on the head half of that side."""
+    options = []
+    for (r, rot), lit in bed.alts.items():
+        slits = [t for (sr, _), t in stand.alts.items() if sr == r]
+        if not slits:
+            continue
+        head_axis, head_sign = _axis_sign(side_direction("back", rot))
+        length = bed.size(rot)[head_axis]
+        for sign in (1, -1):
+            p = m.NewBoolVar("")
+            m.AddImplication(p, lit)
+            m.AddBoolOr(slits).OnlyEnforceIf(p)
+            _gap_in(m, bed, stand, 1 - head_axis, sign, stand.spec.gap_min, stand.spec.gap_max, p)
+            mid = _mid2(stand, head_axis)
+            if head_sign < 0:
+                m.Add(mid >= 2 * _lo(bed, head_axis)).OnlyEnforceIf(p)
+                m.Add(mid <= 2 * _lo(bed, head_axis) + length).OnlyEnforceIf(p)
+            else:
+                m.Add(mid <= 2 * _hi(m, bed, head_axis)).OnlyEnforceIf(p)
+                m.Add(mid >= 2 * _hi(m, bed, head_axis) - length).OnlyEnforceIf(p)
+            options.append(p)
+    return _either(m, options)
+
+
+def _relation_terms(m: cp_model.CpModel, pv: PieceVars, t: PieceVars, relation: str,
+                    w: dict, rel: dict) -> list:
+    """Penalty terms of one relation: a fixed penalty when it is not met, plus per cm from the
+    related piece's spot (a gradient towards it)."""
+    tol = int(rel["axis_tolerance"])
+    if relation == "beside_head":
+        met = _beside_head(m, pv, t)
+        tx, ty = _point2(t, "back", 0)
+        sx, sy = _centre2(pv)
+        weight = int(w["beside_head"])
+    elif relation == "in_front":
+        met = _in_front(m, pv, t, tol)
+        gap = max(pv.spec.gap_min, max((z.depth for z in t.spec.zones if z.side == "front"), default=0))
+        gap += min(pv.spec.width, pv.spec.depth) // 2
+        tx, ty = _point2(t, "front", gap)
+        sx, sy = _centre2(pv)
+        weight = int(w["in_front"])
+    elif relation == "facing":
+        got = _facing(m, pv, t, tol)
+        if got is None:
+            return []
+        met = got
+        lo, hi = facing_range(pv.spec, t.spec)
+        tx, ty = _point2(pv, "front", (lo + hi) // 2 + t.spec.depth // 2)
+        sx, sy = _centre2(t)
+        weight = int(w["facing"])
+    else:
+        return []
+    return [weight * (1 - met), int(w["relation"]) * _l1(m, tx, ty, sx, sy, 10)]
+
+
+def _objective(m: cp_model.CpModel, pieces: list[PieceVars], geo: dict[str, RoomGeo], prefs: dict,
+               kitchen_runs: tuple = ()) -> bool:
+    """Soft preferences (weights in ``data/preferences.toml``); ``kitchen_runs`` are the
+    plan's fittings of kind ``kitchen_run`` (a dining table is drawn towards them)."""
     w = prefs["weights"]
     rel = prefs["relations"]
     terms = []
@@ -694,26 +868,13 @@ def _objective(m: cp_model.CpModel, pieces: list[PieceVars], geo: dict[str, Room
     for pv in pieces:
         by_cat.setdefault(pv.spec.category, []).append(pv)
     for pv in pieces:
-        if pv.locked:
-            continue
         for relation, target in pv.spec.relations:
             cands = [t for t in by_cat.get(target, []) if set(t.spec.rooms) & set(pv.spec.rooms)]
-            if not cands:
+            if not cands or (pv.locked and cands[0].locked):
                 continue
-            t = cands[0]
-            if relation == "beside_head":
-                tx, ty = _point2(t, "back", 0)
-                sx, sy = _centre2(pv)
-            elif relation == "in_front":
-                gap = int(rel["coffee_gap"]) + min(pv.spec.width, pv.spec.depth) // 2
-                tx, ty = _point2(t, "front", gap)
-                sx, sy = _centre2(pv)
-            elif relation == "facing":
-                tx, ty = _point2(pv, "front", int(rel["viewing_distance"]))
-                sx, sy = _centre2(t)
-            else:
-                continue
-            terms.append(int(w["relation"]) * _l1(m, tx, ty, sx, sy, 10))
+            terms += _relation_terms(m, pv, cands[0], relation, w, rel)
+        if pv.locked:
+            continue
         # wall-loving pieces not against a wall
         if not pv.spec.against_wall and pv.walls:
             on = sum(sum(c) for c in pv.walls.values())
@@ -735,6 +896,16 @@ def _objective(m: cp_model.CpModel, pieces: list[PieceVars], geo: dict[str, Room
                         m.Add(along >= hi).OnlyEnforceIf(right)
                         m.AddBoolOr([left, right, pen, wl_lit.Not()])
                         terms.append(int(w["bed_under_window"]) * pen)
+        if pv.spec.category == "dining_table":
+            runs = [(sum(px for px, _ in f.zone or f.outline) / len(f.zone or f.outline),
+                     sum(py for _, py in f.zone or f.outline) / len(f.zone or f.outline))
+                    for f in kitchen_runs if f.room in pv.spec.rooms]
+            if runs:
+                sx, sy = _centre2(pv)
+                ds = [_l1(m, sx, sy, round(2 * cx), round(2 * cy), 10) for cx, cy in runs]
+                best = m.NewIntVar(0, 10_000_000, "")
+                m.AddMinEquality(best, ds)
+                terms.append(int(w["kitchen"]) * best)
         if pv.spec.category == "desk":
             wins = [(cx, cy) for r in pv.spec.rooms if r in geo for *_, cx, cy in geo[r].windows]
             if wins:
@@ -768,6 +939,21 @@ def _symmetric(spec: PieceSpec) -> bool:
     flip = {"front": "back", "back": "front", "left": "right", "right": "left"}
     zs = {(z.side, z.depth) for z in spec.zones}
     return zs == {(flip[s], d) for s, d in zs} and not spec.against_wall
+
+
+def hint(built: Built, where: dict[str, Placement]) -> None:
+    """Give CP-SAT ``where`` as the starting solution of the next run (positions and turns of
+    the pieces it names)."""
+    m = built.model
+    m.ClearHints()
+    for pv in built.pieces:
+        p = where.get(pv.spec.id)
+        if p is None:
+            continue
+        m.AddHint(pv.x, p.x)
+        m.AddHint(pv.y, p.y)
+        for (r, rot), lit in pv.alts.items():
+            m.AddHint(lit, int(r == p.room and rot == p.rotation))
 
 
 def differs(m: cp_model.CpModel, pv: PieceVars, where: Placement, move: int) -> list[cp_model.IntVar]:
