@@ -36,8 +36,9 @@ from ortools.sat.python import cp_model
 
 from roomfit.catalog import PieceSpec, resolve_pieces
 from roomfit.explain import Explanation, explain, precheck
-from roomfit.model import Built, build_model, decode, differs, room_geometry, tune
+from roomfit.model import Built, build_model, decode, differs, hint, room_geometry, tune
 from roomfit.plan import Layout, Placement, Plan
+from roomfit.routes import score_routes
 from roomfit.rules import RuleSet
 
 __all__ = [
@@ -95,14 +96,16 @@ class SolveOptions:
 @dataclass(frozen=True)
 class Candidate:
     """One verified arrangement: ``objective`` (lower is better), the proven ``bound``,
-    whether it is proven ``optimal`` (under the diversity rules of earlier candidates), and its
-    ``rank`` (0 = best)."""
+    whether it is proven ``optimal`` (under the diversity rules of earlier candidates), its
+    ``rank`` (0 = best by ``route_key``, then objective) and ``route_key``, the route scorer's
+    rank key (unreachable trips, walking metres per day; ``roomfit.routes``)."""
 
     layout: Layout
     objective: float
     bound: float
     optimal: bool
     rank: int
+    route_key: tuple[int, float] | None = None
 
     @property
     def gap(self) -> float:
@@ -284,6 +287,8 @@ class _Search:
         self.cut = False  # a cut or a diversity rule was added: infeasible no longer proves much
         self.exhausted = False
         self.quick = False  # stop a run at its first valid layout
+        # a layout taken at once (quick) and not yet improved: the next run starts from it
+        self.provisional: _Found | None = None
 
     def valid_at(self, seconds: float) -> None:
         if self.first is None:
@@ -302,6 +307,8 @@ class _Search:
         if self.exhausted or len(self.found) >= wanted:
             return
         if self.built is not None:
+            if self.provisional is not None:
+                self._improve(wanted, budget_end)
             self._loop(wanted, budget_end, budget_end)
             return
         first_end = time.monotonic() + _STRENGTHENED_SHARE * max(0.0, budget_end - time.monotonic())
@@ -314,12 +321,33 @@ class _Search:
         if self._loop(wanted, budget_end, budget_end) == "infeasible-plain":
             self.impossible = True
 
+    def _improve(self, wanted: int, budget_end: float) -> None:
+        """Search again from the layout taken at once in the first phase, with its fair share
+        of the time (one of ``wanted``); the best checker-passing layout replaces it. If the
+        run finds none or only worse ones, the first layout stays."""
+        prov, built = self.provisional, self.built
+        assert prov is not None and built is not None
+        self.provisional = None
+        self.found.remove(prov)
+        before = len(self.found)
+        hint(built, prov.placements)
+        self._loop(before + 1, budget_end, budget_end, share_of=max(1, wanted - before))
+        built.model.ClearHints()
+        if len(self.found) > before and self.found[-1].objective <= prov.objective:
+            return
+        del self.found[before:]
+        self.found.append(prov)
+        self._forbid_near(built, [pv for pv in built.pieces if not pv.locked], prov.placements)
+
     def _start(self, strengthen: bool) -> None:
         self.built = build_model(self.plan, self.rules, self.specs, self.rooms, self.options.grid,
                                  strengthen=strengthen, geo=self.geo)
         self.strengthen, self.cut = strengthen, False
 
-    def _loop(self, wanted: int, budget_end: float, first_end: float) -> str:
+    def _loop(self, wanted: int, budget_end: float, first_end: float, share_of: int = 0) -> str:
+        """Solve, audit and cut until ``wanted`` layouts are found. A run gets the time left
+        divided among the layouts still wanted (``share_of`` of them when given); the first
+        layout of the group may take all its time."""
         built = self.built
         assert built is not None
         movable = [pv for pv in built.pieces if not pv.locked]
@@ -329,8 +357,9 @@ class _Search:
             if left <= 0.05:
                 return "time"
             # the first layout may take all the time it has; later ones share what is left
-            share = left / (wanted - len(self.found)) if self.found else left
-            work = work_total / self.options.candidates if self.found else work_total
+            parts = share_of or (wanted - len(self.found) if self.found else 1)
+            share = left / parts
+            work = work_total / self.options.candidates if (self.found or share_of) else work_total
             solver = cp_model.CpSolver()
             _params(solver, self.options, share, work)
             seen = _Collect(self, built)
@@ -361,7 +390,10 @@ class _Search:
             self.valid_at(self.clock.elapsed())
             self._say(f"rooms {', '.join(self.rooms)}: candidate {len(self.found)} "
                       f"(objective {accepted.objective:g}{', optimal' if accepted.optimal else ''})")
-            self._forbid_near(built, movable, accepted.placements)
+            if self.quick and not accepted.optimal:
+                self.provisional = accepted  # improved before the diversity rule is added
+            else:
+                self._forbid_near(built, movable, accepted.placements)
             self.cut = True
         return "done"
 
@@ -472,7 +504,8 @@ def solve(plan: Plan, rules: RuleSet, options: SolveOptions | None = None,
     candidates = _combine(plan, rules, searches, options.candidates, counters)
     if not candidates:
         return SolveResult("timeout", (), None, stats())
-    status = "optimal" if candidates[0].optimal else "found"  # the best one proven optimal
+    # "optimal" when every candidate is proven optimal (under the diversity rules)
+    status = "optimal" if all(c.optimal for c in candidates) else "found"
     return SolveResult(status, tuple(candidates), None, stats())
 
 
@@ -492,10 +525,12 @@ def _combine(plan: Plan, rules: RuleSet, searches: list[_Search], wanted: int,
         counters.add("audits")
         if not _audit(plan.with_layout(layout), rules).passed:
             continue
+        key = score_routes(plan.with_layout(layout), rules).rank_key
         out.append(Candidate(layout, sum(f.objective for f in picks), sum(f.bound for f in picks),
-                             all(f.optimal for f in picks), len(out)))
-    # best first (a later search may have done better than an earlier one that ran out of time)
-    out.sort(key=lambda c: c.objective)
+                             all(f.optimal for f in picks), len(out), key))
+    # ranked as `roomfit compare` ranks plans: fewer unreachable trips, then fewer walking
+    # metres per day; the objective breaks ties
+    out.sort(key=lambda c: (c.route_key, c.objective))
     return [replace(c, rank=i) for i, c in enumerate(out)]
 
 
