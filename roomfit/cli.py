@@ -226,8 +226,14 @@ def _cmd_solve(args: argparse.Namespace) -> int:
         print(CAUTION)
         return EXIT_FAIL
     if result.status == "timeout":
-        print(f"Nothing that passes every rule was found within {options.time_limit:g} s. This "
-              "is NOT proven impossible: try a longer --time-limit or fewer pieces.")
+        if st.elapsed < 0.8 * options.time_limit:  # the search gave up with time to spare
+            print(f"The search stopped after {st.elapsed:.1f} s of the {options.time_limit:g} s "
+                  "allowed without an arrangement that passes every rule. This is NOT proven "
+                  "impossible, but more time will not help: try fewer pieces, more rooms for "
+                  "them, or another --seed.")
+        else:
+            print(f"Nothing that passes every rule was found within {options.time_limit:g} s. "
+                  "This is NOT proven impossible: try a longer --time-limit or fewer pieces.")
         print(CAUTION)
         return EXIT_TIMEOUT
     stem = Path(args.plan).stem

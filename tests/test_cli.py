@@ -40,3 +40,19 @@ def test_a_plan_without_a_name_says_so(tmp_path: Path, capsys: pytest.CaptureFix
     plan.write_text(PLAN.read_text().replace('name = "Box room, 6 Narrow Close (invented)"\n', ""))
     assert main(["validate", str(plan)]) == 0
     assert capsys.readouterr().out.splitlines()[0] == f"{plan}: valid plan (no name)"
+
+
+@pytest.mark.parametrize(("elapsed", "advice"), [(0.3, "more time will not help"),
+                                                 (9.9, "try a longer --time-limit")])
+def test_timeout_advice_follows_the_time_used(elapsed: float, advice: str, tmp_path: Path,
+                                              capsys: pytest.CaptureFixture[str],
+                                              monkeypatch: pytest.MonkeyPatch) -> None:
+    # a search that gives up after 0.3 s of 10 s must not advise a longer time limit
+    from roomfit import solver
+
+    def gave_up(*_args: object, **_kw: object) -> solver.SolveResult:
+        return solver.SolveResult("timeout", (), None, solver.SolveStats(elapsed=elapsed))
+
+    monkeypatch.setattr(solver, "solve", gave_up)
+    assert main(["solve", str(PLAN), "--time-limit", "10", "-o", str(tmp_path)]) == 3
+    assert advice in capsys.readouterr().out and list(tmp_path.iterdir()) == []
