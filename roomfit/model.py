@@ -645,6 +645,8 @@ def _gap_rules(m: cp_model.CpModel, pieces: list[PieceVars], g: RoomGeo, route: 
             m.Add(p.y <= qye + near).OnlyEnforceIf(opts[4])
             enf = [_in_room_lit(m, p, r), _in_room_lit(m, q, r)]
             m.AddBoolOr(opts).OnlyEnforceIf(enf)
+        if any(rel == "beside_head" for rel, _ in p.spec.relations):
+            continue  # a nightstand's nook between the bed and a wall is no walkway
         bx0, by0, bx1, by1 = g.bbox
         inr = _in_room_lit(m, p, r)
         for rect in (*g.fittings, *g.hard, (bx0 - 1, by0, bx0, by1), (bx1, by0, bx1 + 1, by1),
