@@ -61,10 +61,12 @@ STATUSES = ("found", "optimal", "impossible", "timeout")
 _DIFFER_PIECES = 2
 _MOVE = 300
 
-#: CP-SAT deterministic time units granted per second of the time limit. On this kind of
-#: machine one unit takes some 10 to 20 s of one worker on our models, so the deterministic
-#: limit usually ends a run before the wall clock does and runs repeat exactly.
-_WORK_PER_SECOND = 0.04
+#: CP-SAT deterministic time units granted per second of the time limit. Measured on this
+#: 2-core machine: one worker does some 0.2 units per second on a 10-piece living room and
+#: bedroom, so a run may use about half its wall-clock share for improving (0.04 ended runs
+#: after a fifth and left candidates at large gaps) while the deterministic limit still ends
+#: most runs first, so they repeat exactly.
+_WORK_PER_SECOND = 0.12
 
 #: Share of the time limit for finding one layout per group before more are searched.
 _FIRST_PHASE_SHARE = 0.6
