@@ -453,6 +453,10 @@ def summarize(rows: list[dict[str, Any]]) -> dict[str, Any]:
         **t, "met": (t["instances"] > 0 and t["solver_success"] is not None
                      and t["baseline_success"] is not None
                      and t["baseline_success"] < t["solver_success"])}
+    for entry in out["targets"].values():  # nothing to judge: not measured, not missed
+        measured = entry.get("times_s") or entry.get("candidates") or entry.get("instances")
+        if not measured:
+            entry["met"] = None
     out["comparison"] = comp
     ratios: dict[str, Any] = {}
     for key in ("time_to_valid_ratio", "walking_ratio", "preference_ratio"):
@@ -574,6 +578,10 @@ def table(rows: list[dict[str, Any]]) -> str:
     return "\n".join(lines)
 
 
+def _yes(met: bool | None) -> str:
+    return {True: "yes", False: "no", None: "not measured"}[met]
+
+
 def markdown(results: dict[str, Any]) -> str:
     """Markdown tables of a results file: targets, the baseline comparison, scaling."""
     m = results["machine"]
@@ -591,20 +599,20 @@ def markdown(results: dict[str, Any]) -> str:
     lines.append(f"| one room, 10 pieces: first valid (median) | < {fv['target_s']} s | "
                  f"{_fmt(fv['median_s'])} s (runs: {', '.join(_fmt(x) for x in fv['times_s'])}; "
                  f"found in {fv.get('found', '?')} of {fv.get('runs', '?')}) | "
-                 f"{'yes' if fv['met'] else 'no'} |")
+                 f"{_yes(fv['met'])} |")
     tr = t["three_rooms_25_3cand"]
     lines.append(f"| three rooms, 25 pieces: 3 candidates | < {tr['target_s']} s | "
-                 f"{', '.join(_fmt(x) for x in tr['times_s'])} s | {'yes' if tr['met'] else 'no'} |")
+                 f"{', '.join(_fmt(x) for x in tr['times_s'])} s | {_yes(tr['met'])} |")
     im = t["impossible_explained"]
     lines.append(f"| impossible room explained | < {im['target_s']} s | "
-                 f"{', '.join(_fmt(x) for x in im['times_s'])} s | {'yes' if im['met'] else 'no'} |")
+                 f"{', '.join(_fmt(x) for x in im['times_s'])} s | {_yes(im['met'])} |")
     av = t["all_candidates_valid"]
     lines.append(f"| every candidate passes the checker | 100 % | {av['candidates']} candidates, "
-                 f"instances with all valid: {av['pass_rate']} | {'yes' if av['met'] else 'no'} |")
+                 f"instances with all valid: {av['pass_rate']} | {_yes(av['met'])} |")
     bw = t["baseline_worse_on_tight"]
     lines.append(f"| tight: baseline succeeds less often | baseline < solver | baseline "
                  f"{bw['baseline_success']}, solver {bw['solver_success']} on {bw['instances']} "
-                 f"| {'yes' if bw['met'] else 'no'} |")
+                 f"| {_yes(bw['met'])} |")
     lines += ["", "| instance | rooms | pieces | floor share | solver | first valid s | all s | "
               "cand. | pass | rounds | peak MB | baseline valid | baseline first s |",
               "|---|---|---|---|---|---|---|---|---|---|---|---|---|"]
@@ -695,7 +703,8 @@ def main(argv: Sequence[str] | None = None) -> int:
     print()
     for name, t in results["summary"]["targets"].items():
         detail = json.dumps({k: v for k, v in t.items() if k != "met"})
-        print(f"{name}: {'met' if t['met'] else 'MISSED'}  {detail}")
+        verdict = {True: "met", False: "MISSED", None: "not measured"}[t["met"]]
+        print(f"{name}: {verdict}  {detail}")
     print(f"\nresults: {out}")
     return 0
 
