@@ -672,7 +672,9 @@ def _check_turning(ctx: _Ctx) -> tuple[list[Finding], list[_Target]]:
             kind = {"circle": "circle", "square": "square",
                     "circle-or-t": "circle nor T-shaped space"}[shape]
             msg = (f"no {_fmt(size)} turning {kind} fits in {room.id}; "
-                   f"the largest {res.measure} is {_fmt(res.measured)}")
+                   + (f"the largest circle that fits is {_fmt(res.measured)} across, too small "
+                      "to hold the square" if shape == "square" and res.measure == "circle" else
+                      f"the largest {res.measure} is {_fmt(res.measured)}"))
         outline: tuple[tuple[float, float], ...] = ()
         if res.centre is not None and res.shape in ("circle", ""):
             r = (size if res.fits else res.measured) / 2

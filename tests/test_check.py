@@ -156,6 +156,18 @@ def test_square_movement_area() -> None:
     assert not turning_space(free, 1500, "square").fits
 
 
+def test_square_too_big_for_the_room_names_the_circle_that_fits() -> None:
+    # DIN 18040-2 level R asks a 1500 mm movement square; a 4000 x 1200 mm room holds a
+    # circle 1200 mm across at most (its short side, by hand), so no square: the message
+    # says which shape it measured
+    room = Room("r", "R", "hall", ((0, 0), (4000, 0), (4000, 1200), (0, 1200)))
+    plan = Plan("narrow", (room,), (Door("in", ("r", OUTSIDE), (2000, 0), 1000, Leaf.NONE),))
+    f = audit(plan, load_ruleset("din-18040-r")).by_rule("turning.space")[0]
+    assert not f.ok and f.measured == pytest.approx(1200, abs=1)
+    assert ("the largest circle that fits is 1200 mm across, too small to hold the square"
+            in f.message)
+
+
 # --------------------------------------------------------------------------- routes
 
 
