@@ -501,7 +501,9 @@ def _title_block(c: _Canvas, plan: Plan, rules: RuleSet, title: str | None, top:
     left = [(part, size, weight) for s, size, weight in left
             for part in _wrap(s, column_px, size * (1.1 if weight == "bold" else 1.0))]
     caution = _wrap(_CAUTION, width_px - 2 * 14, 9)
-    rows = max(sum(1.25 if size > 12 else 1 for _, size, _ in left), len(right) + 2.2)
+    feet = plan.unit in ("in", "ft")  # a plan measured in feet and inches gets a feet bar too
+    rows = max(sum(1.25 if size > 12 else 1 for _, size, _ in left),
+               len(right) + 2.2 + (1.8 if feet else 0))
     height = pad * 2 + rows * line + len(caution) * c.px(12) + c.px(6)
     c.add(f'<g class="title-block"><rect x="{_num(c.px(6))}" y="{_num(top)}" '
           f'width="{_num(width - c.px(12))}" height="{_num(height)}" fill="#ffffff" '
@@ -516,6 +518,8 @@ def _title_block(c: _Canvas, plan: Plan, rules: RuleSet, title: str | None, top:
         c.add(c.text(rx, y, s, size, anchor="start", weight=weight, plan=False))
         y += line
     _scale_bar(c, rx, y + c.px(6))
+    if feet:
+        _scale_bar_feet(c, rx, y + c.px(33))
     y = top + pad + rows * line + c.px(6)
     c.add(f'<line x1="{_num(c.px(6))}" y1="{_num(y - c.px(8))}" x2="{_num(width - c.px(6))}" '
           f'y2="{_num(y - c.px(8))}" stroke="{STYLE["ink"]}" stroke-width="{_num(c.px(0.6))}"/>')
@@ -525,6 +529,23 @@ def _title_block(c: _Canvas, plan: Plan, rules: RuleSet, title: str | None, top:
         y += c.px(12)
     c.add("</g>")
     return height
+
+
+def _scale_bar_feet(c: _Canvas, x: float, y: float) -> None:
+    """A 3 ft bar (914.4 user units, 1 ft = 304.8 mm) with a tick every foot."""
+    ft = 304.8
+    parts = ['<g class="scale-bar-ft">',
+             f'<line class="scale-bar-ft-line" x1="{_num(x)}" y1="{_num(y)}" '
+             f'x2="{_num(x + 3 * ft)}" y2="{_num(y)}" stroke="{STYLE["ink"]}" '
+             f'stroke-width="{_num(c.px(2))}"/>']
+    for k in range(4):
+        parts.append(f'<line x1="{_num(x + k * ft)}" y1="{_num(y - c.px(5))}" '
+                     f'x2="{_num(x + k * ft)}" y2="{_num(y)}" stroke="{STYLE["ink"]}" '
+                     f'stroke-width="{_num(c.px(1.2))}"/>')
+        parts.append(c.text(x + k * ft, y + c.px(10), "3 ft" if k == 3 else str(k), 9,
+                            plan=False))
+    parts.append("</g>")
+    c.add("".join(parts))
 
 
 def _scale_bar(c: _Canvas, x: float, y: float) -> None:

@@ -260,3 +260,14 @@ def test_label_of_a_long_fitting_sits_in_its_middle() -> None:
     xs = [float(v) for v in re.split(r"[ ,]+", outline.get("points", "").strip())[::2]]
     label = next(run.iter(f"{{{NS['s']}}}text"))
     assert float(label.get("x", "0")) == pytest.approx((min(xs) + max(xs)) / 2, abs=1)
+
+
+def test_plans_in_feet_and_inches_get_a_feet_scale_bar_too() -> None:
+    # 3 ft = 3 x 304.8 = 914.4 mm (1959 international foot); a plan in mm gets none
+    unseen = Path(__file__).parent / "plans_unseen"
+    for name, expected in (("inches-cottage", 1), ("feet-l-shape", 1), ("cm-flat", 0)):
+        bars = _classed(_svg(read_plan(unseen / f"{name}.toml")), "line", "scale-bar-ft-line")
+        assert len(bars) == expected, name
+        for bar in bars:
+            length = float(bar.get("x2", "0")) - float(bar.get("x1", "0"))
+            assert length == pytest.approx(914.4, abs=0.1)
