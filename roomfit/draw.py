@@ -43,6 +43,7 @@ from roomfit.geometry import (
     window_segment,
 )
 from roomfit.plan import Leaf, Plan
+from roomfit.planfile import MAX_WALL_THICKNESS
 from roomfit.rules import RuleSet
 
 __all__ = ["Mark", "Path", "STYLE", "SCALE_BAR_MM", "EXTERIOR_WALL", "draw_svg"]
@@ -177,7 +178,16 @@ def _wall_mass(plan: Plan) -> BaseGeometry:
     """Solid wall: a band round the flat and the gaps between neighbouring rooms."""
     rooms = [room_polygon(r) for r in plan.rooms]
     grown = unary_union([p.buffer(EXTERIOR_WALL, join_style="mitre") for p in rooms])
-    return grown.difference(unary_union(rooms))
+    # walls up to MAX_WALL_THICKNESS thick join rooms (plan format): close gaps that wide,
+    # which the exterior band alone (2 x EXTERIOR_WALL) leaves open
+    half = MAX_WALL_THICKNESS / 2 + 1
+    closed = unary_union([p.buffer(half, join_style="mitre") for p in rooms]).buffer(
+        -half, join_style="mitre")
+    # and the notch left where such a gap meets the exterior band (2 x 250 < 600)
+    notch = (MAX_WALL_THICKNESS - 2 * EXTERIOR_WALL) / 2 + 1
+    mass = unary_union([grown, closed]).buffer(notch, join_style="mitre").buffer(
+        -notch, join_style="mitre")
+    return mass.difference(unary_union(rooms))
 
 
 def _through_wall(mass: BaseGeometry, at: tuple[float, float], out: tuple[float, float]) -> float:

@@ -271,3 +271,21 @@ def test_plans_in_feet_and_inches_get_a_feet_scale_bar_too() -> None:
         for bar in bars:
             length = float(bar.get("x2", "0")) - float(bar.get("x1", "0"))
             assert length == pytest.approx(914.4, abs=0.1)
+
+
+def test_walls_up_to_600_mm_thick_are_drawn_solid() -> None:
+    # plan format: rooms up to 600 mm apart are joined by a wall; the drawing fills such a gap
+    # (also where it meets the outer wall band), while rooms 1000 mm apart keep the gap open
+    from shapely import Point as P
+
+    from roomfit.draw import _wall_mass
+    from roomfit.plan import Room
+
+    def two(gap: int) -> Plan:
+        a = Room("a", "A", "hall", ((0, 0), (2000, 0), (2000, 3000), (0, 3000)))
+        b = Room("b", "B", "living", ((2000 + gap, 0), (6000, 0), (6000, 4000), (2000 + gap, 4000)))
+        return Plan("walls", (a, b))
+
+    mass = _wall_mass(two(600))
+    assert all(mass.contains(P(2300, y)) for y in (-100, 10, 1500, 2990))
+    assert not _wall_mass(two(1000)).contains(P(2500, 1500))
