@@ -7,7 +7,11 @@ with exact geometry (``roomfit.check.audit``); a layout that fails is cut off (o
 pieces the failed finding names must move or turn) and the model is solved again. Only
 layouts that pass the audit are returned.
 
-Outcomes (``SolveResult.status``): ``optimal`` (the best candidate is proven optimal for the
+Candidates are ranked as ``roomfit compare`` ranks plans: by the route scorer's rank key
+(``roomfit.routes.score_routes``: unreachable trips, then walking metres per day), the
+objective breaking ties.
+
+Outcomes (``SolveResult.status``): ``optimal`` (every candidate is proven optimal for the
 soft preferences), ``found`` (candidates found, not all proven optimal), ``impossible`` (no
 arrangement exists in the model, with an :class:`Explanation`), ``timeout`` (nothing
 checker-passing found in time; not proven impossible).
