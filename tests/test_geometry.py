@@ -15,6 +15,7 @@ from roomfit.geometry import (
     door_shape,
     footprint,
     free_floor,
+    lies_flat,
     room_polygon,
     side_direction,
     turned_size,
@@ -214,3 +215,12 @@ def test_bed_side_zones_leave_the_head_end_free_in_every_rotation():
             assert z.inset == 500
             assert poly.area == pytest.approx(z.depth * (2100 - 500))
             assert poly.intersection(strip).area == pytest.approx(0)
+
+
+def test_only_a_piece_of_height_zero_lies_flat() -> None:
+    # plan format: height 0 is a rug, which pieces stand on and people walk over
+    def spec(height: int) -> PieceSpec:
+        return PieceSpec("p", "P", "custom", "custom", 2000, 1400, height, False, (), (), ("r",))
+
+    assert lies_flat(spec(0))
+    assert not lies_flat(spec(1)) and not lies_flat(spec(450))
