@@ -20,7 +20,6 @@ from pathlib import Path
 
 import pytest
 
-from roomfit import page
 from roomfit.planfile import read_plan
 
 ROOT = Path(__file__).resolve().parent.parent
@@ -101,7 +100,6 @@ def test_solve_a_sample_in_a_real_browser(server: str, tmp_path: Path) -> None:
         from playwright.sync_api import expect, sync_playwright
     except ImportError:
         _need(False, "the playwright package is not installed (pip install -e '.[e2e]')")
-    _need(page.optional_module("solver") is not None, "roomfit.solver is not available")
 
     with sync_playwright() as pw:
         browser = pw.chromium.launch(executable_path=str(CHROMIUM if CHROMIUM.exists()
