@@ -79,6 +79,13 @@ class FurnitureType:
     #: [S6] plus 45 mm play.
     head_clear: int = 0
 
+    @property
+    def touch_sides(self) -> tuple[str, ...]:
+        """Sides another piece may touch: those without a use zone (a zone keeps its side's
+        floor free of furniture; the back of a wall piece touches the wall)."""
+        used = {side for side, _ in self.zones}
+        return tuple(s for s in SIDES if s not in used)
+
 
 @dataclass(frozen=True)
 class ZoneReq:
@@ -164,7 +171,7 @@ def type_record(t: FurnitureType, rules: RuleSet | None = None) -> dict[str, obj
     return {
         "id": t.id, "label": t.label, "category": t.category,
         "width": t.width, "depth": t.depth, "height": t.height,
-        "against_wall": t.against_wall, "zones": zones,
+        "against_wall": t.against_wall, "zones": zones, "touch_sides": list(t.touch_sides),
         "relations": [{"relation": r, "target": c} for r, c in t.relations],
         "gap_min": t.gap_min, "gap_max": t.gap_max,
         "view_min": t.view_min, "view_max": t.view_max, "screen": t.screen,

@@ -81,9 +81,10 @@ def _cmd_catalog(args: argparse.Namespace) -> int:
         zones = ", ".join(f"{z['side']} {z['kind']}" + (f" {z['depth']}" if "depth" in z else "")
                           for z in r["zones"])  # type: ignore[attr-defined]
         rows.append([r["id"], r["label"], f"{r['width']} x {r['depth']}", str(r["height"]),
-                     "yes" if r["against_wall"] else "no", zones or "-", r["source"]])
+                     "yes" if r["against_wall"] else "no", zones or "-",
+                     ", ".join(r["touch_sides"]) or "-", r["source"]])  # type: ignore[arg-type]
     print(_aligned(["id", "label", "size mm", "height", "wall", "zones"
-                    + (f" (depth mm, {rules.id})" if rules else ""), "source"], rows))
+                    + (f" (depth mm, {rules.id})" if rules else ""), "may touch", "source"], rows))
     print(f"\n{len(rows)} types. Sizes are defaults: a plan may give a piece its own width, "
           "depth and height.")
     print(CAUTION)

@@ -264,3 +264,14 @@ def test_docs_list_every_type_with_its_size() -> None:
         assert f"| {t.width} x {t.depth} x {t.height} |" in row, t.id
     for kind in zone_kinds(CAT):
         assert f"`{kind}`" in doc
+
+
+def test_sides_that_may_touch_are_those_without_a_use_zone():
+    # A use zone keeps its side's floor free of furniture, so only zone-free sides may touch
+    # another piece: a double bed only at its head (back); a dining table for 4 with chairs on
+    # its two long sides (front, back) only at its ends (left, right).
+    cat = load_catalog()
+    assert cat["bed-double-160"].touch_sides == ("back",)
+    assert cat["dining-table-4"].touch_sides == ("left", "right")
+    for t in cat.values():
+        assert set(t.touch_sides).isdisjoint(side for side, _ in t.zones)
