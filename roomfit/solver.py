@@ -553,8 +553,12 @@ def _bare_faults(plan: Plan, rules: RuleSet, counters: _Counters) -> Explanation
     ids = tuple(dict.fromkeys(i for f in fails for i in f.pieces))
     rule_ids = tuple(dict.fromkeys(f.rule for f in fails))
     listed = "; ".join(f.message for f in fails[:5]) + ("; ..." if len(fails) > 5 else "")
+    locked = [p.id for p in kept if p.id in ids]  # a locked piece in the clash can be freed
+    where = (f" (with the locked {', '.join(locked)} where the plan puts "
+             f"{'it' if len(locked) == 1 else 'them'})" if locked else "")
     return Explanation(
         f"The apartment does not pass the {rules.label} rules even before the furniture is "
-        f"placed, so no arrangement can: {listed}.",
+        f"placed{where}, so no arrangement can: {listed}.",
         ids, rule_ids,
-        ("change the plan (doors, fittings) or choose the rule set that governs this home",))
+        ((f"unlock or move {', '.join(locked)}",) if locked else ())
+        + ("change the plan (doors, fittings) or choose the rule set that governs this home",))

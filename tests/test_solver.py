@@ -205,6 +205,19 @@ placement = { x = 0, y = 3400, rotation = 270, room = "r" }
         assert audit(plan.with_layout(c.layout), rules).passed
 
 
+def test_locked_piece_in_a_clash_is_named_with_its_fix() -> None:
+    # unseen column-room: the locked bed's 1000 mm foot zone (UK M4(3)) runs y 2900..3900 into
+    # the 400 mm column at y 2800..3200; no arrangement can pass, and freeing the bed is the fix
+    plan = read_plan(Path(__file__).parent / "plans_unseen" / "column-room.toml")
+    result = solve(plan, rules_for(plan), SolveOptions(candidates=1, time_limit=5.0))
+    assert result.status == "impossible" and result.explanation is not None
+    assert "with the locked bed" in result.explanation.summary
+    assert result.explanation.fixes[0] == "unlock or move bed"
+    unlocked = replace(plan, furniture=tuple(replace(p, locked=False) for p in plan.furniture))
+    again = solve(unlocked, rules_for(plan), SolveOptions(candidates=1, time_limit=5.0))
+    assert again.explanation is None or "locked" not in again.explanation.summary
+
+
 def test_angled_wall_room() -> None:
     # a 4200 x 4000 mm room with its north-east corner cut at 45 degrees (1200 mm legs)
     outline = "[[0, 0], [4200, 0], [4200, 2800], [3000, 4000], [0, 4000]]"
