@@ -77,7 +77,7 @@ __all__ = [
 
 #: Every rule id an audit can report, in the order the summary lists them.
 RULE_IDS = ("piece.room", "piece.inside", "piece.overlap", "wall.against", "zone.clear",
-            "door.width", "door.swing_clear", "window.clear", "route.reach", "route.width",
+            "door.width", "door.swing_clear", "door.approach", "window.clear", "route.reach", "route.width",
             "turning.space")
 
 #: Distance (mm) within which two shapes count as touching / a point as on a line.
@@ -406,6 +406,50 @@ def _check_doors(ctx: _Ctx) -> list[Finding]:
                            where=_pt(blocked if ids else ds.opening),
                            outline=_outline(clear)))
         out += _leaf_through_wall(ctx, ds)
+        out += _approach_through_wall(ctx, ds)
+    return out
+
+
+def _far_face(ctx: _Ctx, ds: geo.DoorShape, rid: str, shape: BaseGeometry) -> BaseGeometry:
+    """``shape`` drawn from the host room's wall line, moved across a thick wall to the face
+    of room ``rid`` (a no-op for the host room and for walls drawn at zero thickness)."""
+    if rid == ds.door.rooms[0]:
+        return shape
+    t = ctx.rooms[rid].exterior.distance(Point(ds.door.at))
+    n = ds.inward[rid]
+    return translate(shape, n[0] * t, n[1] * t)
+
+
+def _approach_through_wall(ctx: _Ctx, ds: geo.DoorShape) -> list[Finding]:
+    """``door.approach``: fails when walls cut short the clear floor the rule set asks in
+    front of a door (a door in a corner with no room beyond its latch: 2010 ADA Table
+    404.2.4.1 asks 18 in there on the pull side)."""
+    out: list[Finding] = []
+    d = ds.door
+    for rid, want in ds.asked.items():
+        room = ctx.rooms.get(rid)
+        if room is None:
+            continue
+        through = _far_face(ctx, ds, rid, want).difference(room)
+        if ds.swing is not None and rid == d.swings_into:
+            through = through.difference(_far_face(ctx, ds, rid, ds.swing))  # reported above
+        if through.area <= TOUCH_MM2 * 100:
+            continue
+        rule = ctx.rules.get("door.approach_swing" if rid == d.swings_into
+                             else "door.approach_other")
+        out.append(Finding(
+            "door.approach", False,
+            f"walls cut {_cm2(through.area)} off the clear floor asked in front of door {d.id} "
+            f"in {rid} ({rule.exact_mm:.0f} mm deep"
+            + (f", {ctx.rules.get('door.approach_latch').exact_mm:.0f} mm beyond the latch"
+               if rid == d.swings_into and ctx.rules.mm("door.approach_latch") else "")
+            + ")", measured=round(through.area, 1), required=0.0, source=_source(rule),
+            pieces=(d.id,), room=rid, where=_pt(through), outline=_outline(want)))
+    if ds.asked and not out:
+        out.append(Finding("door.approach", True,
+                           f"the clear floor asked in front of door {d.id} fits between the walls",
+                           measured=0.0, required=0.0, pieces=(d.id,), room=d.rooms[0],
+                           where=_pt(ds.opening)))
     return out
 
 
@@ -417,11 +461,7 @@ def _leaf_through_wall(ctx: _Ctx, ds: geo.DoorShape) -> list[Finding]:
     room = ctx.rooms.get(d.swings_into or "")
     if ds.swing is None or room is None:
         return []
-    swing = ds.swing
-    if d.swings_into != d.rooms[0]:
-        t = room.exterior.distance(Point(d.at))  # the wall's thickness, 0 for a shared wall
-        n = ds.inward[d.swings_into]
-        swing = translate(swing, n[0] * t, n[1] * t)
+    swing = _far_face(ctx, ds, d.swings_into, ds.swing)
     through = swing.difference(room)
     if through.area <= TOUCH_MM2:
         return []
@@ -1074,7 +1114,7 @@ def audit(plan: Plan, rules: RuleSet, *, widths: bool = True) -> Audit:
 
 
 #: Rules whose ``measured`` and ``required`` are areas (mm2) rather than lengths.
-AREA_RULES = ("piece.inside", "piece.overlap", "zone.clear", "door.swing_clear",
+AREA_RULES = ("piece.inside", "piece.overlap", "zone.clear", "door.swing_clear", "door.approach",
               "window.clear")
 
 

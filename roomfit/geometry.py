@@ -11,7 +11,7 @@ area pi * 900**2 / 4 = 636 173 mm2 (our polygon approximates the arc with 64 seg
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 from shapely import Polygon, box
 from shapely.geometry import LineString, Point
@@ -140,7 +140,10 @@ class DoorShape:
     ``opening``: the clear opening on the wall of ``door.rooms[0]``; ``inward``: room id ->
     unit normal pointing into that room; ``swing``: the floor the leaf sweeps (None for
     sliding leaves, doorways, and leaves swinging outside); ``approach``: room id -> the clear
-    floor kept in front of the door in that room (swing included), clipped to the room.
+    floor kept in front of the door in that room (swing included), clipped to the room;
+    ``asked``: room id -> the rectangle of clear floor the rule set asks for there, not
+    clipped (drawn from the wall line of ``door.rooms[0]``), so the audit can tell when walls
+    cut it short.
     """
 
     door: Door
@@ -148,6 +151,7 @@ class DoorShape:
     inward: dict[str, tuple[float, float]]
     swing: Polygon | None
     approach: dict[str, BaseGeometry]
+    asked: dict[str, Polygon] = field(default_factory=dict)
 
 
 def _inward_normal(poly: Polygon, at: tuple[float, float], u: tuple[float, float]) -> tuple[float, float]:
@@ -254,6 +258,7 @@ def door_shape(plan: Plan, door: Door, rules: RuleSet) -> DoorShape:
         inward[door.rooms[1]] = (-n0[0], -n0[1])
     swing = None
     approach: dict[str, BaseGeometry] = {}
+    asked: dict[str, Polygon] = {}
     other_depth = rules.mm("door.approach_other")
     for rid, n in inward.items():
         if door.leaf == Leaf.HINGED and door.swings_into == rid:
@@ -265,13 +270,14 @@ def door_shape(plan: Plan, door: Door, rules: RuleSet) -> DoorShape:
             along_latch = closed
             sgn = 1 if (along_latch[0] * u[0] + along_latch[1] * u[1]) > 0 else -1
             lo, hi = (half, half + latch) if sgn > 0 else (half + latch, half)
-            zone = _rect_from(at, u, n, lo, hi, depth).union(swing)
+            asked[rid] = _rect_from(at, u, n, lo, hi, depth)
+            zone = asked[rid].union(swing)
         else:
             if other_depth == 0:
                 continue
-            zone = _rect_from(at, u, n, half, half, other_depth)
+            zone = asked[rid] = _rect_from(at, u, n, half, half, other_depth)
         approach[rid] = zone.intersection(polys[rid])
-    return DoorShape(door, opening, inward, swing, approach)
+    return DoorShape(door, opening, inward, swing, approach, asked)
 
 
 def door_shapes(plan: Plan, rules: RuleSet) -> list[DoorShape]:

@@ -574,3 +574,27 @@ def test_leaf_into_a_shallow_closet_cannot_open(wall: int) -> None:
     into_room = replace(door, swings_into="r")
     plan = replace(plan, doors=(*base.doors, into_room))
     assert all(f.ok for f in audit(plan, rules).by_rule("door.swing_clear"))
+
+
+# --------------------------------------------------------------------------- door approach
+
+
+@pytest.mark.parametrize("jamb_gap, ok", [(430, False), (470, True)])
+def test_pull_side_latch_clearance_in_a_corner(jamb_gap: int, ok: bool) -> None:
+    # 2010 ADA Table 404.2.4.1, front approach, pull side: 18 in (457.2 mm) of clear floor
+    # beyond the latch. A 900 mm door swinging in, hinge on the east jamb, latch jamb
+    # `jamb_gap` mm from the west wall: 430 mm leaves too little, 470 mm enough.
+    x = jamb_gap + 450  # door centre
+    door = Door("entry", ("r", OUTSIDE), (x, 0), 900, Leaf.HINGED, "r", "left")
+    result = audit(_room_plan(doors=(door,), rules="ada-2010"), load_ruleset("ada-2010"))
+    findings = result.by_rule("door.approach")
+    assert len(findings) == 1 and findings[0].ok is ok, [f.message for f in findings]
+    if not ok:
+        # the part cut off: (457.2 - 430) mm wide by 60 in (1524 mm) deep, worked by hand
+        assert findings[0].measured == pytest.approx((inches(18) - 430) * inches(60), rel=0.01)
+
+
+def test_door_approach_is_met_by_everyday_doors_in_the_room_middle() -> None:
+    door = Door("entry", ("r", OUTSIDE), (2000, 0), 800, Leaf.HINGED, "r", "right")
+    result = audit(_room_plan(doors=(door,)), load_ruleset("everyday"))
+    assert [f.ok for f in result.by_rule("door.approach")] == [True]

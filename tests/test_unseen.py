@@ -33,7 +33,8 @@ CHECK_EXIT = {
     "corridor-flat": 1,       # 300 mm shoe cabinet in a 1000 mm corridor: 700 < 762 mm (30 in)
     "feet-l-shape": 1,        # the daybed stands 24 mm through the nook's north wall
     "inches-cottage": 1,      # the dresser has no placement
-    "no-hall": 0,             # no furniture: doors, routes and turning circles only
+    # no furniture, but the corner door leaves no floor beyond its latch (door.approach)
+    "no-hall": 1,
     "seven-rooms": 1,         # 21 pieces, none placed
     "thick-walls": 1,         # the single bed runs 100 mm into the 200 mm wall
     "tiny-bed": 1,            # the 1900 mm bed has no placement
@@ -157,8 +158,9 @@ def test_outputs_never_replace_the_input_or_a_folder(tmp_path: Path,
     # a 1900 x 2100 mm bed in a 1500 x 2600 mm room fits neither way round (1900 > 1500,
     # 2100 > 1500): provably impossible
     ("tiny-bed", {1}),
-    # no furniture, and the bare flat passes the audit (check exits 0): its layout is found
-    ("no-hall", {0}),
+    # no furniture, and the bare flat already fails the audit (a corner door with no floor
+    # beyond its latch): no arrangement can pass, so solve must say impossible
+    ("no-hall", {1}),
 ])
 def test_solve_small_unseen_plans(stem: str, codes: set[int], tmp_path: Path,
                                   capsys: pytest.CaptureFixture[str]) -> None:
