@@ -133,11 +133,19 @@ def _cmd_rules(args: argparse.Namespace) -> int:
     return EXIT_OK
 
 
+def _chosen_rules(plan: Plan, name: str | None) -> RuleSet:
+    """The rule set a command judges ``plan`` by: the plan's own with its overrides, or the
+    set named by ``--rules`` as published. The plan's overrides were written for its own set,
+    so they carry over only when ``--rules`` names that same set."""
+    if name is None or name == plan.rules.set:
+        return rules_for(plan)
+    return load_ruleset(name)
+
+
 def _plan_and_rules(args: argparse.Namespace) -> tuple[Plan, RuleSet]:
-    """The plan file and the rule set to use: the plan's own, or ``--rules`` with its overrides."""
+    """The plan file and the rule set to use (see ``_chosen_rules``)."""
     plan = read_plan(args.plan)
-    name = getattr(args, "rules", None)
-    return plan, (load_ruleset(name, plan.rules.override_map()) if name else rules_for(plan))
+    return plan, _chosen_rules(plan, getattr(args, "rules", None))
 
 
 def _cmd_draw(args: argparse.Namespace) -> int:
@@ -175,8 +183,7 @@ def _cmd_check(args: argparse.Namespace) -> int:
     if args.draw:
         refuse_input_overwrite(args.draw, args.plan)
     plan = read_plan(args.plan)
-    rules = (load_ruleset(args.rules, plan.rules.override_map()) if args.rules
-             else rules_for(plan))
+    rules = _chosen_rules(plan, args.rules)
     result = audit(plan, rules)
     if args.draw:
         from roomfit.draw import draw_svg
@@ -366,8 +373,8 @@ def build_parser() -> argparse.ArgumentParser:
     p = sub.add_parser("check", help="audit a furnished plan: clearances, circulation, turning "
                                      "space (exit 1 when a rule fails)")
     p.add_argument("plan", help="plan file (.toml) with furniture placed")
-    p.add_argument("--rules", metavar="SET", help="rule set to audit against, keeping the plan's overrides "
-                   "(default: the plan's)")
+    p.add_argument("--rules", metavar="SET", help="rule set to audit against, as published; the plan's "
+                   "overrides apply only to its own set (default: the plan's)")
     p.add_argument("--json", action="store_true", help="print the findings as JSON")
     p.add_argument("--draw", metavar="SVG", help="also write the plan with the failures marked")
     p.set_defaults(func=_cmd_check)
@@ -378,8 +385,8 @@ def build_parser() -> argparse.ArgumentParser:
                    help="arrangements to find (default 3)")
     p.add_argument("--time-limit", type=float, default=20.0, metavar="S",
                    help="seconds for the whole search (default 20)")
-    p.add_argument("--rules", metavar="SET", help="rule set to satisfy, keeping the plan's overrides "
-                   "(default: the plan's)")
+    p.add_argument("--rules", metavar="SET", help="rule set to satisfy, as published; the plan's "
+                   "overrides apply only to its own set (default: the plan's)")
     p.add_argument("--seed", type=int, default=0, metavar="K",
                    help="random seed; same seed, same result")
     p.add_argument("--grid", type=int, default=50, metavar="MM",

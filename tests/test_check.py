@@ -598,3 +598,18 @@ def test_door_approach_is_met_by_everyday_doors_in_the_room_middle() -> None:
     door = Door("entry", ("r", OUTSIDE), (2000, 0), 800, Leaf.HINGED, "r", "right")
     result = audit(_room_plan(doors=(door,)), load_ruleset("everyday"))
     assert [f.ok for f in result.by_rule("door.approach")] == [True]
+
+
+def test_rules_option_judges_by_the_named_set_as_published(tmp_path: Path,
+                                                           capsys: pytest.CaptureFixture[str]) -> None:
+    # A plan under the everyday set that overrides its route width to 500 mm: an 800 mm
+    # passage passes its own rules, but `--rules ada-2010` judges by the standard as published
+    # (2010 ADA §403.5.1: 36 in, 32 in for at most 24 in), where 800 mm fails.
+    from roomfit.planfile import write_plan
+
+    plan = _room_plan(_gap(800, 1000), overrides=(("route.width", 500), ("route.pinch_width", 500)))
+    path = write_plan(plan, tmp_path / "p.toml")
+    assert main(["check", str(path)]) == 0
+    assert main(["check", str(path), "--rules", "ada-2010"]) == 1
+    assert main(["check", str(path), "--rules", "everyday"]) == 0  # its own set: overrides kept
+    capsys.readouterr()
