@@ -1,8 +1,8 @@
 """Rows of the project's clearance reference cited by the rule sets and the catalogue.
 
-Transcribed from ``shared/reference/clearances.md`` (the Status column: V verified against
+Copied from ``shared/reference/clearances.md`` (the Status column: V verified against
 the named page, M from memory, CP common practice) so the tests also run on a clean clone;
-``test_rules.py`` compares this transcription with the file when the file is on the machine.
+``test_rules.py`` compares this copy with the file when the file is on the machine.
 Only V rows may serve as test oracles.
 """
 

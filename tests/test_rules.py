@@ -69,7 +69,7 @@ def test_statuses_match_the_rows_cited(name: str) -> None:
             assert rows or "not checked" in r.source or "not confirmed" in r.source, r.id
 
 
-def test_transcribed_statuses_match_the_reference_file() -> None:
+def test_copied_statuses_match_the_reference_file() -> None:
     if not REFERENCE_FILE.exists():
         pytest.skip("reference file not on this machine")
     found = parse_statuses(REFERENCE_FILE.read_text(encoding="utf-8"))

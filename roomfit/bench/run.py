@@ -560,21 +560,33 @@ def _fmt(t: float | None) -> str:
     return "-" if t is None else f"{t:.2f}"
 
 
+def _cells(r: dict[str, Any]) -> dict[str, str]:
+    """One instance's results as formatted cells, shared by the text and Markdown tables."""
+    s, b = r.get("solver", {}), r.get("baseline", {})
+    pr = s.get("pass_rate")
+    return {
+        "name": r["name"], "rooms": str(r["rooms"]), "pieces": str(r["pieces"]),
+        "share": f"{r['floor_share']:.2f}",
+        "status": str(s.get("status", "error" if "error" in s else "-")),
+        "first": _fmt(s.get("time_first_valid_s")), "all": _fmt(s.get("time_all_s")),
+        "cand": str(s.get("candidates", "-")), "pass": "-" if pr is None else f"{pr:.0%}",
+        "rounds": str(s.get("rounds", "-")), "peak": str(s.get("peak_mb", "-")),
+        "sa_ok": "-" if "success" not in b else ("yes" if b["success"] else "no"),
+        "sa_first": _fmt(b.get("time_first_valid_s")),
+    }
+
+
 def table(rows: list[dict[str, Any]]) -> str:
     """A plain-text table, one line per instance."""
     head = (f"{'instance':40} {'rooms':>5} {'pcs':>4} {'share':>5} {'status':>10} {'first':>6} "
             f"{'all':>6} {'cand':>4} {'pass':>5} {'SA ok':>5} {'SA 1st':>6}")
     lines = [head, "-" * len(head)]
     for r in rows:
-        s, b = r.get("solver", {}), r.get("baseline", {})
-        pr = s.get("pass_rate")
+        c = _cells(r)
         lines.append(
-            f"{r['name'][:40]:40} {r['rooms']:>5} {r['pieces']:>4} {r['floor_share']:>5.2f} "
-            f"{s.get('status', s.get('error', '-'))[:10]:>10} {_fmt(s.get('time_first_valid_s')):>6} "
-            f"{_fmt(s.get('time_all_s')):>6} {s.get('candidates', '-')!s:>4} "
-            f"{'-' if pr is None else f'{pr:.0%}':>5} "
-            f"{'-' if 'success' not in b else ('yes' if b['success'] else 'no'):>5} "
-            f"{_fmt(b.get('time_first_valid_s')):>6}")
+            f"{c['name'][:40]:40} {c['rooms']:>5} {c['pieces']:>4} {c['share']:>5} "
+            f"{c['status'][:10]:>10} {c['first']:>6} {c['all']:>6} {c['cand']:>4} "
+            f"{c['pass']:>5} {c['sa_ok']:>5} {c['sa_first']:>6}")
     return "\n".join(lines)
 
 
@@ -617,15 +629,10 @@ def markdown(results: dict[str, Any]) -> str:
               "cand. | pass | rounds | peak MB | baseline valid | baseline first s |",
               "|---|---|---|---|---|---|---|---|---|---|---|---|---|"]
     for r in results["instances"]:
-        s, b = r.get("solver", {}), r.get("baseline", {})
-        pr = s.get("pass_rate")
-        lines.append(
-            f"| {r['name']} | {r['rooms']} | {r['pieces']} | {r['floor_share']:.2f} | "
-            f"{s.get('status', 'error' if 'error' in s else '-')} | {_fmt(s.get('time_first_valid_s'))} | "
-            f"{_fmt(s.get('time_all_s'))} | {s.get('candidates', '-')} | "
-            f"{'-' if pr is None else f'{pr:.0%}'} | {s.get('rounds', '-')} | {s.get('peak_mb', '-')} | "
-            f"{'-' if 'success' not in b else ('yes' if b['success'] else 'no')} | "
-            f"{_fmt(b.get('time_first_valid_s'))} |")
+        c = _cells(r)
+        lines.append("| " + " | ".join(c[k] for k in (
+            "name", "rooms", "pieces", "share", "status", "first", "all", "cand", "pass",
+            "rounds", "peak", "sa_ok", "sa_first")) + " |")
     ra = summ["ratios"]
     lines += ["", "Ratios (baseline / solver, median over instances where both found a valid "
               "arrangement): " + ", ".join(f"{k} {v['median']} (n={v['n']})" for k, v in ra.items()),
