@@ -48,11 +48,12 @@ from roomfit.geometry import (
     door_shapes,
     fixture_polygon,
     fixture_zone,
+    footprint_box,
     room_polygon,
     side_direction,
     window_band,
 )
-from roomfit.plan import Placement, Plan, Room
+from roomfit.plan import Placement, Plan, Room, Trip
 from roomfit.rules import RuleSet
 
 __all__ = [
@@ -396,12 +397,14 @@ def build_model(
     assume: bool = False,
     objective: bool = True,
     geo: dict[str, RoomGeo] | None = None,
+    routines: tuple[Trip, ...] | None = None,
 ) -> Built:
     """Build the placement model for ``specs`` in ``rooms``.
 
     ``strengthen`` adds the pairwise gap rules and door walkways; ``assume`` puts every rule
     group behind an assumption literal (for explaining infeasibility); ``objective`` adds the
-    soft preferences. Locked pieces keep their plan placement.
+    soft preferences. Locked pieces keep their plan placement. ``routines`` are the daily
+    trips the routine term uses (default: the plan's own).
     """
     m = cp_model.CpModel()
     geo = geo or {r: room_geometry(plan, rules, plan.room(r), grid) for r in rooms}
@@ -577,7 +580,8 @@ def build_model(
     has_obj = False
     if objective:
         runs = tuple(f for f in plan.fixtures if f.kind == "kitchen_run" and f.room in geo)
-        has_obj = _objective(m, pieces, geo, prefs, runs)
+        has_obj = _objective(m, pieces, geo, prefs, runs, plan,
+                             plan.routines if routines is None else routines)
     return Built(m, pieces, geo, groups, has_obj, route)
 
 
@@ -860,9 +864,11 @@ def _relation_terms(m: cp_model.CpModel, pv: PieceVars, t: PieceVars, relation: 
 
 
 def _objective(m: cp_model.CpModel, pieces: list[PieceVars], geo: dict[str, RoomGeo], prefs: dict,
-               kitchen_runs: tuple = ()) -> bool:
+               kitchen_runs: tuple = (), plan: Plan | None = None,
+               routines: tuple[Trip, ...] = ()) -> bool:
     """Soft preferences (weights in ``data/preferences.toml``); ``kitchen_runs`` are the
-    plan's fittings of kind ``kitchen_run`` (a dining table is drawn towards them)."""
+    plan's fittings of kind ``kitchen_run`` (a dining table is drawn towards them); ``routines``
+    are the daily trips between places of ``plan`` (no routine term without a plan)."""
     w = prefs["weights"]
     rel = prefs["relations"]
     terms = []
@@ -916,10 +922,152 @@ def _objective(m: cp_model.CpModel, pieces: list[PieceVars], geo: dict[str, Room
                 best = m.NewIntVar(0, 10_000_000, "")
                 m.AddMinEquality(best, ds)
                 terms.append(int(w["daylight"]) * best)
+    terms += _routine_terms(m, pieces, plan, routines, prefs) if plan is not None else []
+    terms += _align_terms(m, pieces, prefs)
     if not terms:
         return False
     m.Minimize(sum(terms))
     return True
+
+
+def _first_doors(plan: Plan, start: str) -> dict[str, tuple[int, int]]:
+    """For every room reachable from ``start`` through the plan's doors, the centre of the
+    door of ``start`` on a shortest (fewest doors) way there."""
+    out: dict[str, tuple[int, int]] = {}
+    frontier = []
+    for d in plan.doors:
+        if start in d.rooms:
+            other = d.rooms[1] if d.rooms[0] == start else d.rooms[0]
+            if other not in out and other != start:
+                out[other] = (round(d.at[0]), round(d.at[1]))
+                frontier.append(other)
+    while frontier:
+        nxt = []
+        for r in frontier:
+            for d in plan.doors:
+                if r in d.rooms:
+                    other = d.rooms[1] if d.rooms[0] == r else d.rooms[0]
+                    if other not in out and other != start:
+                        out[other] = out[r]
+                        nxt.append(other)
+        frontier = nxt
+    return out
+
+
+def _fixed_place(plan: Plan, name: str) -> tuple[tuple[int, int], tuple[str, ...]] | None:
+    """A trip end that does not move: its point (mm) and the rooms it can be reached from
+    directly (a door joins two). Fittings: the centre of their use zone (else of the fitting);
+    rooms: the centre of their outline; ``"entrance"``: the entrance door's centre."""
+    if name == "entrance":
+        d = next((d for d in plan.doors if d.is_entrance), None)
+        return ((round(d.at[0]), round(d.at[1])), d.rooms) if d is not None else None
+    for d in plan.doors:
+        if d.id == name:
+            return (round(d.at[0]), round(d.at[1])), d.rooms
+    for f in plan.fixtures:
+        if f.id == name:
+            shape = fixture_zone(f) or fixture_polygon(f)
+            c = shape.centroid
+            return (round(c.x), round(c.y)), (f.room,)
+    for r in plan.rooms:
+        if r.id == name:
+            c = room_polygon(r).centroid
+            return (round(c.x), round(c.y)), (r.id,)
+    return None
+
+
+#: The routine term counts distance in units of this many mm (a metre: the term only breaks
+#: ties between otherwise equal spots; a stronger pull towards doors crowds them and the
+#: checker then rejects more layouts).
+_ROUTINE_MM = 1000
+
+
+def _routine_terms(m: cp_model.CpModel, pieces: list[PieceVars], plan: Plan,
+                   routines: tuple[Trip, ...], prefs: dict) -> list:
+    """Per daily trip with a movable piece at one end: ``routine`` x trips a day x the L1
+    distance (in metres) from the piece's centre to the other end, or, when that end lies in
+    another room, to the door of the piece's room on the way there. Trips between two
+    movable pieces of the model use both centres when the pieces share their only room and
+    are left out otherwise; ends the model cannot place (pieces of other groups) too."""
+    weight = int(prefs["weights"].get("routine", 0))
+    if weight <= 0:
+        return []
+    by_id = {pv.spec.id: pv for pv in pieces}
+    terms = []
+    doors: dict[str, dict[str, tuple[int, int]]] = {}
+    for trip in routines:
+        coef = max(1, round(weight * trip.per_day))
+        ends = [by_id.get(trip.origin), by_id.get(trip.target)]
+        movable = [pv for pv in ends if pv is not None and not pv.locked]
+        if not movable:
+            continue
+        if len(movable) == 2:
+            a, b = movable
+            if a.spec.rooms != b.spec.rooms or len(a.spec.rooms) != 1:
+                continue
+            ax, ay = _centre2(a)
+            bx, by = _centre2(b)
+            terms.append(coef * _l1(m, ax, ay, bx, by, _ROUTINE_MM))
+            continue
+        pv = movable[0]
+        other = trip.target if pv is ends[0] else trip.origin
+        if other in by_id:  # a locked piece of the model: its centre, when in pv's only room
+            where = plan.piece(other).placement
+            if where is None or any(r != where.room for r, _ in pv.alts):
+                continue
+            x0, y0, x1, y1 = footprint_box(by_id[other].spec, where)
+            sx, sy = _centre2(pv)
+            terms.append(coef * _l1(m, sx, sy, x0 + x1, y0 + y1, _ROUTINE_MM))
+            continue
+        got = _fixed_place(plan, other)
+        if got is None:
+            continue
+        (px, py), reach = got
+        tx_parts, ty_parts = [], []
+        for (r, _), lit in pv.alts.items():
+            if r in reach:
+                pt = (px, py)
+            else:
+                way = doors.setdefault(r, _first_doors(plan, r))
+                pt = next((way[t] for t in reach if t in way), None)
+                if pt is None:
+                    pt = (px, py)
+            tx_parts.append(lit * (2 * pt[0]))
+            ty_parts.append(lit * (2 * pt[1]))
+        sx, sy = _centre2(pv)
+        terms.append(coef * _l1(m, sx, sy, sum(tx_parts), sum(ty_parts), _ROUTINE_MM))
+    return terms
+
+
+def _align_terms(m: cp_model.CpModel, pieces: list[PieceVars], prefs: dict) -> list:
+    """A penalty ``align`` for each pair of free-standing pieces of one room (movable, of no
+    wall-loving category, not made to stand against a wall, allowed in that room only) whose
+    footprint centres share neither x nor y. Only the ``align_pieces`` largest such pieces
+    per room take part, so the pairs stay few."""
+    w = int(prefs["weights"].get("align", 0))
+    k = int(prefs.get("align", {}).get("pieces", 3))
+    if w <= 0 or k < 2:
+        return []
+    lovers = set(prefs["wall"]["categories"])
+    by_room: dict[str, list[PieceVars]] = {}
+    for pv in pieces:
+        rooms = {r for r, _ in pv.alts}
+        if (pv.locked or pv.spec.against_wall or pv.spec.category in lovers or len(rooms) != 1):
+            continue
+        by_room.setdefault(rooms.pop(), []).append(pv)
+    terms = []
+    for group in by_room.values():
+        group.sort(key=lambda pv: -pv.spec.width * pv.spec.depth)
+        chosen = group[:k]
+        for i, a in enumerate(chosen):
+            for b in chosen[i + 1:]:
+                ok = m.NewBoolVar("")
+                ex, ey = m.NewBoolVar(""), m.NewBoolVar("")
+                m.Add(_mid2(a, 0) == _mid2(b, 0)).OnlyEnforceIf(ex)
+                m.Add(_mid2(a, 1) == _mid2(b, 1)).OnlyEnforceIf(ey)
+                m.AddBoolOr([ex, ey]).OnlyEnforceIf(ok)
+                terms.append(w * (1 - ok))
+    return terms
 
 
 def decode(built: Built, solver: cp_model.CpSolver) -> dict[str, Placement]:

@@ -41,8 +41,8 @@ from ortools.sat.python import cp_model
 from roomfit.catalog import PieceSpec, resolve_pieces
 from roomfit.explain import Explanation, explain, precheck
 from roomfit.model import Built, build_model, decode, differs, hint, room_geometry, tune
-from roomfit.plan import Layout, Placement, Plan
-from roomfit.routes import score_routes
+from roomfit.plan import Layout, Placement, Plan, Trip
+from roomfit.routes import default_routines, score_routes
 from roomfit.rules import RuleSet
 
 __all__ = [
@@ -54,6 +54,7 @@ __all__ = [
     "STATUSES",
     "solve",
     "components",
+    "routines_of",
 ]
 
 STATUSES = ("found", "optimal", "impossible", "timeout")
@@ -235,6 +236,18 @@ def _params(solver: cp_model.CpSolver, options: SolveOptions, seconds: float, wo
     tune(p)
 
 
+def routines_of(plan: Plan) -> tuple[Trip, ...]:
+    """The plan's daily routine, or the default trips of ``routes.default_routines`` (which
+    name only placed pieces, so every unplaced piece gets a stand-in placement first): the
+    trips the model's routine term shortens."""
+    if plan.routines or not plan.rooms:
+        return plan.routines
+    stand_in = Placement(0, 0, 0, plan.rooms[0].id)
+    placed = tuple(p if p.placement is not None else replace(p, placement=stand_in)
+                   for p in plan.furniture)
+    return default_routines(replace(plan, furniture=placed))
+
+
 def _audit(plan: Plan, rules: RuleSet):
     from roomfit.check import audit  # the judge; imported here to keep the import graph one-way
 
@@ -347,7 +360,7 @@ class _Search:
 
     def _start(self, strengthen: bool) -> None:
         self.built = build_model(self.plan, self.rules, self.specs, self.rooms, self.options.grid,
-                                 strengthen=strengthen, geo=self.geo)
+                                 strengthen=strengthen, geo=self.geo, routines=routines_of(self.plan))
         self.strengthen, self.cut = strengthen, False
 
     def _loop(self, wanted: int, budget_end: float, first_end: float, share_of: int = 0) -> str:

@@ -15,7 +15,7 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 from shapely import box
-from shapely.geometry import LineString, Polygon
+from shapely.geometry import LineString, Point, Polygon
 
 from roomfit.catalog import load_catalog, resolve_pieces
 from roomfit.check import audit
@@ -444,3 +444,63 @@ def test_candidates_are_ranked_by_the_route_scorer() -> None:
         keys = [score_routes(plan.with_layout(c.layout), rules).rank_key for c in result.candidates]
         assert keys == sorted(keys)
         assert [c.rank for c in result.candidates] == list(range(len(keys)))
+
+
+_WC_ROOM = """
+[[rooms]]
+id = "b"
+label = "WC"
+use = "bathroom"
+outline = [[4800, 1400], [6800, 1400], [6800, 4000], [4800, 4000]]
+[[doors]]
+id = "dw"
+rooms = ["r", "b"]
+at = [4800, 2700]
+width = 800
+leaf = "sliding"
+[[fixtures]]
+id = "wc"
+room = "b"
+kind = "wc"
+label = "WC"
+outline = [[6100, 3000], [6800, 3000], [6800, 3400], [6100, 3400]]
+zone = [[5300, 2800], [6100, 2800], [6100, 3600], [5300, 3600]]
+height = 400
+[[routines]]
+from = "bed"
+to = "wc"
+per_day = 2
+"""
+
+
+def test_bed_stands_on_the_side_of_the_door_to_the_wc() -> None:
+    # The bedroom is symmetric about x = 2400 (entrance door in the middle of the bottom wall)
+    # except for the door to the WC on the right wall: every spot on one side has a mirror
+    # image on the other (with the bed's side zone mirrored too), so the routine trip
+    # bed -> WC decides the side. Distances by shapely, from the footprints.
+    plan = loads_plan(_room(4800, 4000, [("bed", "bed-single-90")], extra=_WC_ROOM))
+    rules = rules_for(plan)
+    spec = resolve_pieces(plan, rules)[0]
+    result = solve(plan, rules, SolveOptions(candidates=1, time_limit=10.0, seed=0))
+    assert result.status in ("found", "optimal") and result.candidates
+    where = dict(result.candidates[0].layout)["bed"]
+    bed = footprint(spec, where)
+    mirror = replace(where, x=4800 - where.x - round(bed.bounds[2] - bed.bounds[0]))
+    assert audit(plan.with_layout(result.candidates[0].layout), rules).passed
+    door = Point(4800, 2700)
+    assert bed.centroid.distance(door) < footprint(spec, mirror).centroid.distance(door)
+
+
+def test_free_standing_pieces_line_up() -> None:
+    # a dining table and a side table in a large empty room: nothing stops them sharing a
+    # centre line, so they do (checked on the footprints, independently of the model)
+    text = _room(6000, 5000, [("t", "dining-table-4"), ("s", "side-table")])
+    plan = loads_plan(text)
+    rules = rules_for(plan)
+    specs = {s.id: s for s in resolve_pieces(plan, rules)}
+    result = solve(plan, rules, SolveOptions(candidates=1, time_limit=10.0, seed=0))
+    assert result.status in ("found", "optimal") and result.candidates
+    c = result.candidates[0]
+    assert audit(plan.with_layout(c.layout), rules).passed
+    t, s = (footprint(specs[k], dict(c.layout)[k]).centroid for k in ("t", "s"))
+    assert abs(t.x - s.x) < 1e-6 or abs(t.y - s.y) < 1e-6
