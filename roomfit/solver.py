@@ -433,16 +433,28 @@ class _Search:
         built.model.AddBoolOr(lits)
 
     def _forbid_near(self, built: Built, movable: list, where: dict[str, Placement]) -> None:
+        """The next layout must move at least ``_DIFFER_PIECES`` pieces away from ``where``.
+        Interchangeable pieces (two equal nightstands) count as moved only when they stand on
+        none of their class's earlier spots, so swapping them is no new arrangement."""
         if not movable:
             return
         m = built.model
         need = min(_DIFFER_PIECES, len(movable))
+        classes: dict[PieceSpec, list[str]] = {}
+        for pv in movable:
+            classes.setdefault(_interchangeable(pv.spec), []).append(pv.spec.id)
         flags = []
         for pv in movable:
             d = m.NewBoolVar("")
-            m.AddBoolOr([*differs(m, pv, where[pv.spec.id], _MOVE), d.Not()])
+            for other in classes[_interchangeable(pv.spec)]:
+                m.AddBoolOr([*differs(m, pv, where[other], _MOVE), d.Not()])
             flags.append(d)
         m.Add(sum(flags) >= need)
+
+
+def _interchangeable(spec: PieceSpec) -> PieceSpec:
+    """``spec`` without its name: pieces with equal results are interchangeable."""
+    return replace(spec, id="", label="")
 
 
 def solve(plan: Plan, rules: RuleSet, options: SolveOptions | None = None,

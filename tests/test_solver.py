@@ -504,3 +504,28 @@ def test_free_standing_pieces_line_up() -> None:
     assert audit(plan.with_layout(c.layout), rules).passed
     t, s = (footprint(specs[k], dict(c.layout)[k]).centroid for k in ("t", "s"))
     assert abs(t.x - s.x) < 1e-6 or abs(t.y - s.y) < 1e-6
+
+
+def test_swapping_equal_pieces_is_no_new_candidate() -> None:
+    # Candidates must differ in at least 2 pieces even when equal pieces (the one-bed flat's
+    # two nightstands) are taken as interchangeable: a swap is the same arrangement.
+    import itertools
+    from dataclasses import replace
+
+    path = PLANS / "one-bed.toml"
+    plan, rules = _rules(path, None)
+    kind = {s.id: replace(s, id="", label="") for s in resolve_pieces(plan, rules)}
+    assert kind["ns-left"] == kind["ns-right"]
+    movable = [p.id for p in plan.furniture if not p.locked]
+    # three candidates, as `roomfit solve` asks by default: before equal pieces were taken as
+    # interchangeable, two of them here were one arrangement with the nightstands swapped
+    result = solve(plan, rules, SolveOptions(candidates=3, time_limit=30.0, seed=0))
+    assert len(result.candidates) >= 2
+
+    def away(a: dict, b: dict, pid: str) -> bool:
+        return all(a[pid].room != b[q].room or a[pid].rotation != b[q].rotation
+                   or abs(a[pid].x - b[q].x) >= 300 or abs(a[pid].y - b[q].y) >= 300
+                   for q in movable if kind[q] == kind[pid])
+
+    for a, b in itertools.combinations([dict(c.layout) for c in result.candidates], 2):
+        assert sum(away(a, b, pid) for pid in movable) >= min(2, len(movable))
