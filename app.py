@@ -22,14 +22,16 @@ from typing import Any
 
 import streamlit as st
 
-from roomfit import compare, draw, page, report, solver
-from roomfit.catalog import load_catalog, resolve_pieces
+from roomfit import page
+from roomfit.audit.geometry import room_polygon
 from roomfit.cli import CAUTION
 from roomfit.errors import RoomfitError
-from roomfit.geometry import room_polygon
-from roomfit.plan import Plan
-from roomfit.planfile import dumps_plan, read_plan
-from roomfit.rules import RuleSet, load_ruleset, rules_for, ruleset_ids
+from roomfit.plan.data import Plan
+from roomfit.plan.planfile import dumps_plan, read_plan
+from roomfit.present import compare, draw, report
+from roomfit.rules.catalog import load_catalog, resolve_pieces
+from roomfit.rules.sets import RuleSet, load_ruleset, rules_for, ruleset_ids
+from roomfit.solve import search as solver
 
 ROOT = Path(__file__).resolve().parent
 PLANS = ROOT / "plans"

@@ -14,11 +14,11 @@ import os
 import sys
 from collections.abc import Callable, Sequence
 
-from roomfit.catalog import load_catalog, type_record
 from roomfit.errors import Problem, RoomfitError
-from roomfit.plan import Plan
-from roomfit.planfile import read_plan
-from roomfit.rules import RuleSet, load_ruleset, rule_record, rules_for, ruleset_ids
+from roomfit.plan.data import Plan
+from roomfit.plan.planfile import read_plan
+from roomfit.rules.catalog import load_catalog, type_record
+from roomfit.rules.sets import RuleSet, load_ruleset, rule_record, rules_for, ruleset_ids
 
 __all__ = ["CAUTION", "main", "build_parser"]
 
@@ -149,8 +149,8 @@ def _plan_and_rules(args: argparse.Namespace) -> tuple[Plan, RuleSet]:
 
 
 def _cmd_draw(args: argparse.Namespace) -> int:
-    from roomfit.draw import draw_svg
     from roomfit.files import atomic_write, refuse_input_overwrite
+    from roomfit.present.draw import draw_svg
 
     refuse_input_overwrite(args.output, args.plan)
     plan, rules = _plan_and_rules(args)
@@ -163,8 +163,8 @@ def _cmd_draw(args: argparse.Namespace) -> int:
 
 
 def _cmd_export(args: argparse.Namespace) -> int:
-    from roomfit.export import to_geojson
     from roomfit.files import atomic_write, refuse_input_overwrite
+    from roomfit.present.export import to_geojson
 
     refuse_input_overwrite(args.output, args.plan)
     plan, rules = _plan_and_rules(args)
@@ -177,7 +177,7 @@ def _cmd_export(args: argparse.Namespace) -> int:
 
 
 def _cmd_check(args: argparse.Namespace) -> int:
-    from roomfit.check import audit, audit_record, marks_for, summary_text
+    from roomfit.audit.check import audit, audit_record, marks_for, summary_text
     from roomfit.files import atomic_write, refuse_input_overwrite
 
     if args.draw:
@@ -186,7 +186,7 @@ def _cmd_check(args: argparse.Namespace) -> int:
     rules = _chosen_rules(plan, args.rules)
     result = audit(plan, rules)
     if args.draw:
-        from roomfit.draw import draw_svg
+        from roomfit.present.draw import draw_svg
 
         atomic_write(args.draw, draw_svg(plan, rules, marks=marks_for(result)))
     if args.json:
@@ -206,11 +206,11 @@ def _cmd_solve(args: argparse.Namespace) -> int:
     from dataclasses import replace
     from pathlib import Path
 
-    from roomfit.check import audit
+    from roomfit.audit.check import audit
     from roomfit.files import atomic_write, refuse_input_overwrite
-    from roomfit.plan import RuleChoice
-    from roomfit.planfile import write_plan
-    from roomfit.solver import SolveOptions, solve
+    from roomfit.plan.data import RuleChoice
+    from roomfit.plan.planfile import write_plan
+    from roomfit.solve.search import SolveOptions, solve
 
     plan, rules = _plan_and_rules(args)
     if args.candidates < 1 or not 0 < args.time_limit < math.inf or args.grid < 1:
@@ -246,7 +246,7 @@ def _cmd_solve(args: argparse.Namespace) -> int:
         return EXIT_TIMEOUT
     stem = Path(args.plan).stem
     chosen = replace(plan, rules=RuleChoice(rules.id, plan.rules.overrides))
-    from roomfit.routes import score_routes
+    from roomfit.audit.routes import score_routes
 
     print(f"{'candidate':>9}  {'objective':>9}  {'optimal / gap':>13}  {'walking':>10}  checker  files")
     for c in result.candidates:
@@ -256,7 +256,7 @@ def _cmd_solve(args: argparse.Namespace) -> int:
         write_plan(furnished, toml_path)
         files = [str(toml_path)]
         try:
-            from roomfit.draw import draw_svg
+            from roomfit.present.draw import draw_svg
         except ImportError:  # drawing not available: the plan files are still written
             draw_svg = None
         if draw_svg is not None:
@@ -289,14 +289,14 @@ def _arrangements(args: argparse.Namespace) -> tuple[list[Plan], list[str], Rule
 
 def _write_report(args: argparse.Namespace, path: str, comparison, title: str | None) -> None:  # noqa: ANN001
     from roomfit.files import atomic_write, refuse_input_overwrite
-    from roomfit.report import build_report
+    from roomfit.present.report import build_report
 
     refuse_input_overwrite(path, *args.plans)
     atomic_write(path, build_report(comparison, caution=CAUTION, title=title))
 
 
 def _cmd_compare(args: argparse.Namespace) -> int:
-    from roomfit.compare import compare, render_table
+    from roomfit.present.compare import compare, render_table
 
     plans, names, rules = _arrangements(args)
     if args.html:
@@ -313,8 +313,8 @@ def _cmd_compare(args: argparse.Namespace) -> int:
 
 
 def _cmd_report(args: argparse.Namespace) -> int:
-    from roomfit.compare import compare
     from roomfit.files import refuse_input_overwrite
+    from roomfit.present.compare import compare
 
     plans, names, rules = _arrangements(args)
     refuse_input_overwrite(args.output, *args.plans)

@@ -4,13 +4,13 @@ The page holds layout only. Everything it shows or changes goes through these fu
 which call the same library functions as the ``roomfit`` command: reading a plan file,
 resolving pieces against the catalogue and the rule set, auditing, solving, drawing.
 
-Edits to the furniture list and the rule choice return a *new* :class:`~roomfit.plan.Plan`
+Edits to the furniture list and the rule choice return a *new* :class:`~roomfit.plan.data.Plan`
 and are validated by writing the plan to plan-file text and reading it back with
-:func:`~roomfit.planfile.loads_plan`, so a bad value in the page gets exactly the message
+:func:`~roomfit.plan.planfile.loads_plan`, so a bad value in the page gets exactly the message
 (field path and what is wrong) that the same value in a plan file would get; the old plan is
 kept until an edit is valid.
 
->>> from roomfit.plan import Plan, Room
+>>> from roomfit.plan.data import Plan, Room
 >>> p = Plan("demo", (Room("r", "Room", "living", ((0, 0), (3000, 0), (3000, 3000), (0, 3000))),))
 >>> p = add_piece(p, "nightstand", ("r",))
 >>> [x.id for x in p.furniture]
@@ -26,12 +26,12 @@ from dataclasses import dataclass, replace
 from pathlib import Path
 from typing import Any, TypeVar
 
-from roomfit.catalog import load_catalog, resolve_pieces
 from roomfit.errors import PlanError, Problem, RoomfitError, RuleError
-from roomfit.plan import Layout, Piece, Placement, Plan, RuleChoice
-from roomfit.planfile import dumps_plan, loads_plan
-from roomfit.rules import RuleSet, load_ruleset
-from roomfit.units import format_length
+from roomfit.plan.data import Layout, Piece, Placement, Plan, RuleChoice
+from roomfit.plan.planfile import dumps_plan, loads_plan
+from roomfit.plan.units import format_length
+from roomfit.rules.catalog import load_catalog, resolve_pieces
+from roomfit.rules.sets import RuleSet, load_ruleset
 
 __all__ = [
     "EDITED_SOURCE",
@@ -263,7 +263,7 @@ def rule_rows(rules: RuleSet) -> list[dict[str, Any]]:
 
 def findings_rows(findings: Sequence[Any]) -> list[dict[str, Any]]:
     """One row per audit finding (``check.Finding``), failures first; areas in mm²."""
-    from roomfit.check import AREA_RULES
+    from roomfit.audit.check import AREA_RULES
 
     def amount(f: Any, v: float | None) -> str:
         if v is None:
@@ -303,7 +303,7 @@ def route_rows(routes: Any) -> list[dict[str, Any]]:
 def comparison_rows(comparison: Any, best_mark: str = " ★") -> list[dict[str, str]]:
     """The metrics of ``compare.Comparison`` as table rows: one row per metric, one column per
     arrangement, the best value(s) marked with ``best_mark``."""
-    from roomfit.compare import METRICS
+    from roomfit.present.compare import METRICS
 
     rows = []
     for m in METRICS:

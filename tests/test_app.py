@@ -14,9 +14,9 @@ from streamlit.testing.v1 import AppTest
 
 from roomfit import page
 from roomfit.errors import PlanError, RuleError
-from roomfit.plan import Placement
-from roomfit.planfile import dumps_plan, loads_plan, read_plan
-from roomfit.rules import load_ruleset, rules_for
+from roomfit.plan.data import Placement
+from roomfit.plan.planfile import dumps_plan, loads_plan, read_plan
+from roomfit.rules.sets import load_ruleset, rules_for
 
 ROOT = Path(__file__).resolve().parent.parent
 APP = str(ROOT / "app.py")
@@ -305,7 +305,7 @@ def _markdown(at: AppTest) -> str:
 
 
 def test_solve_compare_keep_and_check_on_the_page() -> None:
-    from roomfit.check import audit
+    from roomfit.audit.check import audit
 
     at = _app()
     _open_sample(at, WHEELCHAIR)
@@ -335,7 +335,7 @@ def test_solve_compare_keep_and_check_on_the_page() -> None:
     table = next(d.value for d in at.dataframe if "metric" in d.value.columns)
     assert [c for c in table.columns if c != "metric"] == [f"Arrangement {i + 1}" for i in range(n)]
     # the star for walking goes to the least walking, routed again here with score_routes
-    from roomfit.routes import score_routes
+    from roomfit.audit.routes import score_routes
 
     walks = [score_routes(plan.with_layout(c.layout), rules) for c in result.candidates]
     keys = [(len(w.unreachable), round(w.walking_m_per_day, 1)) for w in walks]
@@ -396,7 +396,7 @@ def test_check_tab_gives_the_cli_findings(capsys: pytest.CaptureFixture[str]) ->
 
 
 def test_outcome_words_for_timeout_and_impossible() -> None:
-    from roomfit.solver import Explanation, SolveResult, SolveStats
+    from roomfit.solve.search import Explanation, SolveResult, SolveStats
 
     none = SolveResult("timeout", (), None, SolveStats())
     words = page.describe_outcome(none, 20)

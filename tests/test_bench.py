@@ -12,13 +12,13 @@ from pathlib import Path
 import pytest
 from shapely.geometry import Polygon
 
+from roomfit.audit.check import audit
 from roomfit.bench.baseline import AnnealOptions, anneal, layout_cost
 from roomfit.bench.instances import SHAPES, InstanceSpec, floor_demand, generate, wheelchair_set
 from roomfit.bench.run import BenchConfig, markdown, run, summarize
-from roomfit.check import audit
-from roomfit.plan import Layout, Piece, Placement, Plan, Room, RuleChoice
-from roomfit.planfile import dumps_plan, loads_plan
-from roomfit.rules import load_ruleset, rules_for
+from roomfit.plan.data import Layout, Piece, Placement, Plan, Room, RuleChoice
+from roomfit.plan.planfile import dumps_plan, loads_plan
+from roomfit.rules.sets import load_ruleset, rules_for
 
 SIZES = [(1, 4), (1, 10), (3, 25), (5, 33), (8, 60)]
 

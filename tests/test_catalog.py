@@ -15,7 +15,10 @@ from pathlib import Path
 import pytest
 from reference_rows import STATUS, cited_rows, oracle
 
-from roomfit.catalog import (
+from roomfit.cli import CAUTION, main
+from roomfit.errors import PlanError
+from roomfit.plan.data import Piece
+from roomfit.rules.catalog import (
     RELATIONS,
     SIDES,
     TALL_HEIGHT,
@@ -26,10 +29,7 @@ from roomfit.catalog import (
     type_record,
     zone_kinds,
 )
-from roomfit.cli import CAUTION, main
-from roomfit.errors import PlanError
-from roomfit.plan import Piece
-from roomfit.rules import load_ruleset, ruleset_ids
+from roomfit.rules.sets import load_ruleset, ruleset_ids
 
 CAT = load_catalog()
 IN = 25.4  # mm per inch, exact

@@ -17,9 +17,9 @@ import pytest
 import shapely
 from shapely import Polygon, box
 
-from roomfit.check import Audit, Finding, audit, marks_for, summary_text, turning_space
+from roomfit.audit.check import Audit, Finding, audit, marks_for, summary_text, turning_space
 from roomfit.cli import main
-from roomfit.plan import (
+from roomfit.plan.data import (
     OUTSIDE,
     Door,
     Fixture,
@@ -31,9 +31,9 @@ from roomfit.plan import (
     RuleChoice,
     Window,
 )
-from roomfit.planfile import read_plan
-from roomfit.rules import load_ruleset, ruleset_ids
-from roomfit.units import inches
+from roomfit.plan.planfile import read_plan
+from roomfit.plan.units import inches
+from roomfit.rules.sets import load_ruleset, ruleset_ids
 
 ROOM_W, ROOM_D = 4000, 5000
 WALL_Y = 1500  # south face of the wall of pieces
@@ -460,7 +460,7 @@ def test_random_layouts_give_consistent_findings() -> None:
     # every route failure names a bottleneck with a widest route below the one required
     from dataclasses import replace
 
-    from roomfit.check import RULE_IDS
+    from roomfit.audit.check import RULE_IDS
 
     rng = np.random.default_rng(3)
     plans = [read_plan(p) for p in SAMPLES]
@@ -605,7 +605,7 @@ def test_rules_option_judges_by_the_named_set_as_published(tmp_path: Path,
     # A plan under the everyday set that overrides its route width to 500 mm: an 800 mm
     # passage passes its own rules, but `--rules ada-2010` judges by the standard as published
     # (2010 ADA §403.5.1: 36 in, 32 in for at most 24 in), where 800 mm fails.
-    from roomfit.planfile import write_plan
+    from roomfit.plan.planfile import write_plan
 
     plan = _room_plan(_gap(800, 1000), overrides=(("route.width", 500), ("route.pinch_width", 500)))
     path = write_plan(plan, tmp_path / "p.toml")

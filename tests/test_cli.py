@@ -48,7 +48,7 @@ def test_timeout_advice_follows_the_time_used(elapsed: float, advice: str, tmp_p
                                               capsys: pytest.CaptureFixture[str],
                                               monkeypatch: pytest.MonkeyPatch) -> None:
     # a search that gives up after 0.3 s of 10 s must not advise a longer time limit
-    from roomfit import solver
+    from roomfit.solve import search as solver
 
     def gave_up(*_args: object, **_kw: object) -> solver.SolveResult:
         return solver.SolveResult("timeout", (), None, solver.SolveStats(elapsed=elapsed))

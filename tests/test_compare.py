@@ -6,11 +6,11 @@ from dataclasses import replace
 
 import pytest
 
-from roomfit.check import audit
-from roomfit.compare import METRICS, compare, render_table
-from roomfit.plan import Door, Fixture, Leaf, Piece, Placement, Plan, Room, Trip
-from roomfit.routes import route
-from roomfit.rules import load_ruleset
+from roomfit.audit.check import audit
+from roomfit.audit.routes import route
+from roomfit.plan.data import Door, Fixture, Leaf, Piece, Placement, Plan, Room, Trip
+from roomfit.present.compare import METRICS, compare, render_table
+from roomfit.rules.sets import load_ruleset
 
 EVERYDAY = load_ruleset("everyday")
 

@@ -10,14 +10,15 @@ from pathlib import Path
 import pytest
 from shapely import Polygon
 
-from roomfit.catalog import resolve_pieces
+from roomfit.audit.geometry import footprint_box
+from roomfit.audit.marks import Mark
+from roomfit.audit.marks import Path as Route
 from roomfit.cli import main
-from roomfit.draw import SCALE_BAR_MM, STYLE, Mark, draw_svg
-from roomfit.draw import Path as Route
-from roomfit.geometry import footprint_box
-from roomfit.plan import Piece, Placement, Plan
-from roomfit.planfile import read_plan
-from roomfit.rules import rules_for
+from roomfit.plan.data import Piece, Placement, Plan
+from roomfit.plan.planfile import read_plan
+from roomfit.present.draw import SCALE_BAR_MM, STYLE, draw_svg
+from roomfit.rules.catalog import resolve_pieces
+from roomfit.rules.sets import rules_for
 
 NS = {"s": "http://www.w3.org/2000/svg"}
 
@@ -278,8 +279,8 @@ def test_walls_up_to_600_mm_thick_are_drawn_solid() -> None:
     # (also where it meets the outer wall band), while rooms 1000 mm apart keep the gap open
     from shapely import Point as P
 
-    from roomfit.draw import _wall_mass
-    from roomfit.plan import Room
+    from roomfit.plan.data import Room
+    from roomfit.present.draw import _wall_mass
 
     def two(gap: int) -> Plan:
         a = Room("a", "A", "hall", ((0, 0), (2000, 0), (2000, 3000), (0, 3000)))

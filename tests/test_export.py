@@ -10,11 +10,11 @@ from pathlib import Path
 import pytest
 from shapely import LineString, Polygon
 
-from roomfit.catalog import resolve_pieces
 from roomfit.cli import main
-from roomfit.export import to_geojson
-from roomfit.planfile import read_plan
-from roomfit.rules import rules_for
+from roomfit.plan.planfile import read_plan
+from roomfit.present.export import to_geojson
+from roomfit.rules.catalog import resolve_pieces
+from roomfit.rules.sets import rules_for
 
 _KINDS = {"room", "door", "door_swing", "window", "fitting", "fitting_zone", "piece", "use_zone"}
 

@@ -8,8 +8,7 @@ import pytest
 from shapely import Point, box
 from shapely.geometry import Polygon
 
-from roomfit.catalog import PieceSpec, ZoneReq
-from roomfit.geometry import (
+from roomfit.audit.geometry import (
     ARC_SEGMENTS,
     door_leaf,
     door_shape,
@@ -23,8 +22,9 @@ from roomfit.geometry import (
     wall_direction,
     window_band,
 )
-from roomfit.plan import OUTSIDE, Door, Fixture, Leaf, Placement, Plan, Room, Window
-from roomfit.rules import load_ruleset
+from roomfit.plan.data import OUTSIDE, Door, Fixture, Leaf, Placement, Plan, Room, Window
+from roomfit.rules.catalog import PieceSpec, ZoneReq
+from roomfit.rules.sets import load_ruleset
 
 EVERYDAY = load_ruleset("everyday")
 SQUARE = Room("r", "Room", "living", ((0, 0), (4000, 0), (4000, 3000), (0, 3000)))
@@ -191,10 +191,10 @@ def test_bed_side_zones_leave_the_head_end_free_in_every_rotation():
     # Worked example: a 1700 x 2100 bed frame with 610 mm side zones that leave out the
     # 500 mm at the head (head_clear, common practice) -> each side zone is 610 x 1600 and
     # never touches the 500 mm strip along the head end, whatever the rotation.
-    from roomfit.catalog import load_catalog, resolve_piece
-    from roomfit.geometry import footprint, side_direction, use_zones
-    from roomfit.plan import Piece, Placement
-    from roomfit.rules import load_ruleset
+    from roomfit.audit.geometry import footprint, side_direction, use_zones
+    from roomfit.plan.data import Piece, Placement
+    from roomfit.rules.catalog import load_catalog, resolve_piece
+    from roomfit.rules.sets import load_ruleset
 
     spec = resolve_piece(Piece("b", "bed-double-160", ("r",)), load_ruleset("everyday"),
                          load_catalog())

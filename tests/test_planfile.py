@@ -19,9 +19,9 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from roomfit.errors import PlanError, RoomfitError
-from roomfit.plan import Leaf, Placement
-from roomfit.planfile import dumps_plan, loads_plan, read_plan, write_plan
-from roomfit.units import parse_length
+from roomfit.plan.data import Leaf, Placement
+from roomfit.plan.planfile import dumps_plan, loads_plan, read_plan, write_plan
+from roomfit.plan.units import parse_length
 
 
 def _base() -> dict[str, Any]:

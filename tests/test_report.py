@@ -12,9 +12,9 @@ from pathlib import Path
 import pytest
 
 from roomfit.cli import CAUTION, main
-from roomfit.compare import compare
-from roomfit.planfile import read_plan
-from roomfit.report import PDF_NOTE, build_report
+from roomfit.plan.planfile import read_plan
+from roomfit.present.compare import compare
+from roomfit.present.report import PDF_NOTE, build_report
 
 PLANS = Path(__file__).resolve().parent.parent / "plans"
 

@@ -13,15 +13,15 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 from shapely import box
 
-from roomfit.plan import Door, Fixture, Leaf, Piece, Placement, Plan, Room, Trip
-from roomfit.planfile import read_plan
-from roomfit.routes import (
+from roomfit.audit.routes import (
     NIGHT_LONG_MM,
     default_routines,
     route,
     score_routes,
 )
-from roomfit.rules import load_ruleset, rules_for, ruleset_ids
+from roomfit.plan.data import Door, Fixture, Leaf, Piece, Placement, Plan, Room, Trip
+from roomfit.plan.planfile import read_plan
+from roomfit.rules.sets import load_ruleset, rules_for, ruleset_ids
 
 EVERYDAY = load_ruleset("everyday")
 PLANS = Path(__file__).resolve().parent.parent / "plans"

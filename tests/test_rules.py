@@ -15,11 +15,11 @@ from pathlib import Path
 import pytest
 from reference_rows import REFERENCE_FILE, RULE_STATUS, STATUS, cited_rows, oracle, parse_statuses
 
-from roomfit.catalog import load_catalog, zone_kinds
 from roomfit.cli import CAUTION, main
 from roomfit.errors import RuleError
-from roomfit.planfile import loads_plan
-from roomfit.rules import (
+from roomfit.plan.planfile import loads_plan
+from roomfit.rules.catalog import load_catalog, zone_kinds
+from roomfit.rules.sets import (
     REQUIRED_RULES,
     STATUSES,
     Rule,

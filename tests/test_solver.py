@@ -1,4 +1,4 @@
-"""Tests for roomfit.solver: every layout it returns is judged by the checker (``check.audit``,
+"""Tests for roomfit.solve.search: every layout it returns is judged by the checker (``check.audit``,
 exact shapely geometry) and by independent shapely tests; "impossible" answers are confirmed
 by arguments computed by hand where one exists.
 
@@ -17,14 +17,14 @@ from hypothesis import strategies as st
 from shapely import box
 from shapely.geometry import LineString, Point, Polygon
 
-from roomfit.catalog import load_catalog, resolve_pieces
-from roomfit.check import audit
+from roomfit.audit.check import audit
+from roomfit.audit.geometry import footprint, room_polygon, side_direction
 from roomfit.cli import main
-from roomfit.geometry import footprint, room_polygon, side_direction
-from roomfit.model import cover_rects, cross_thickness
-from roomfit.planfile import loads_plan, read_plan
-from roomfit.rules import load_ruleset, rules_for
-from roomfit.solver import SolveOptions, SolveResult, solve
+from roomfit.plan.planfile import loads_plan, read_plan
+from roomfit.rules.catalog import load_catalog, resolve_pieces
+from roomfit.rules.sets import load_ruleset, rules_for
+from roomfit.solve.model import cover_rects, cross_thickness
+from roomfit.solve.search import SolveOptions, SolveResult, solve
 
 PLANS = Path(__file__).resolve().parent.parent / "plans"
 SAMPLES = sorted(PLANS.glob("*.toml"))
@@ -330,11 +330,11 @@ def test_model_zones_match_the_checker_zones_for_every_rotation():
     # including a bed's side zones that leave the head end free (head_clear).
     from shapely import box
 
-    from roomfit.catalog import load_catalog, resolve_piece
-    from roomfit.geometry import zone_polygon
-    from roomfit.model import _zone_rect_expr
-    from roomfit.plan import Piece, Placement
-    from roomfit.rules import load_ruleset
+    from roomfit.audit.geometry import zone_polygon
+    from roomfit.plan.data import Piece, Placement
+    from roomfit.rules.catalog import load_catalog, resolve_piece
+    from roomfit.rules.sets import load_ruleset
+    from roomfit.solve.model import _zone_rect_expr
 
     spec = resolve_piece(Piece("b", "bed-double-160", ("r",)), load_ruleset("everyday"),
                          load_catalog())
@@ -435,7 +435,7 @@ def test_nightstand_touches_the_bed_on_the_head_half_of_a_long_side() -> None:
 
 
 def test_candidates_are_ranked_by_the_route_scorer() -> None:
-    from roomfit.routes import score_routes
+    from roomfit.audit.routes import score_routes
 
     for name in ("two-bed.toml", "ground-floor-wheelchair.toml"):
         plan, rules = _rules(PLANS / name, None)

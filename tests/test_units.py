@@ -1,7 +1,7 @@
 import pytest
 
 from roomfit.errors import UnitError
-from roomfit.units import format_length, inches, parse_length
+from roomfit.plan.units import format_length, inches, parse_length
 
 
 def test_inches_are_exact():

@@ -17,10 +17,10 @@ from pathlib import Path
 import pytest
 from shapely.geometry import shape
 
-from roomfit.check import audit
+from roomfit.audit.check import audit
 from roomfit.cli import main
-from roomfit.planfile import read_plan
-from roomfit.rules import rules_for
+from roomfit.plan.planfile import read_plan
+from roomfit.rules.sets import rules_for
 
 UNSEEN = Path(__file__).resolve().parent / "plans_unseen"
 PLANS = sorted(UNSEEN.glob("*.toml"))

@@ -41,8 +41,7 @@ from shapely import box, prepared
 from shapely.geometry import Point
 from shapely.ops import unary_union
 
-from roomfit.catalog import PieceSpec, resolve_pieces
-from roomfit.geometry import (
+from roomfit.audit.geometry import (
     door_shapes,
     fixture_polygon,
     fixture_zone,
@@ -52,8 +51,9 @@ from roomfit.geometry import (
     window_band,
     zone_polygon,
 )
-from roomfit.plan import Layout, Placement, Plan
-from roomfit.rules import RuleSet
+from roomfit.plan.data import Layout, Placement, Plan
+from roomfit.rules.catalog import PieceSpec, resolve_pieces
+from roomfit.rules.sets import RuleSet
 
 __all__ = ["AnnealOptions", "AnnealResult", "anneal", "layout_cost", "WEIGHTS"]
 

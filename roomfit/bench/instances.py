@@ -14,7 +14,7 @@ turning space. The room's floor is that demand divided by the *target share*: 0.
 them here; the checker, not this share, decides what fits). An *impossible* instance is a
 single room at a share well over 1, which no arrangement can satisfy.
 
-The same :class:`InstanceSpec` always gives the same :class:`~roomfit.plan.Plan`:
+The same :class:`InstanceSpec` always gives the same :class:`~roomfit.plan.data.Plan`:
 
 >>> a = generate(InstanceSpec(rooms=2, pieces=8, seed=3))
 >>> a == generate(InstanceSpec(rooms=2, pieces=8, seed=3))
@@ -30,10 +30,10 @@ import random
 from dataclasses import dataclass
 from pathlib import Path
 
-from roomfit.catalog import load_catalog, resolve_pieces
-from roomfit.plan import OUTSIDE, Door, Leaf, Piece, Plan, Room, RuleChoice, Trip, Window
-from roomfit.planfile import read_plan
-from roomfit.rules import RuleSet, load_ruleset, ruleset_ids
+from roomfit.plan.data import OUTSIDE, Door, Leaf, Piece, Plan, Room, RuleChoice, Trip, Window
+from roomfit.plan.planfile import read_plan
+from roomfit.rules.catalog import load_catalog, resolve_pieces
+from roomfit.rules.sets import RuleSet, load_ruleset, ruleset_ids
 
 __all__ = [
     "SHAPES",

@@ -35,8 +35,8 @@ from shapely.geometry import Polygon
 from roomfit.bench.baseline import AnnealOptions, anneal, layout_cost
 from roomfit.bench.instances import Instance, InstanceSpec, floor_demand, generate, sample_instances
 from roomfit.files import atomic_write
-from roomfit.plan import Layout, Plan
-from roomfit.rules import RuleSet, rules_for
+from roomfit.plan.data import Layout, Plan
+from roomfit.rules.sets import RuleSet, rules_for
 
 __all__ = [
     "BenchConfig",
@@ -236,7 +236,7 @@ def suite(config: BenchConfig) -> list[Instance]:
 # -- measuring -----------------------------------------------------------------------------
 
 def _audit_passes(plan: Plan, rules: RuleSet) -> Callable[[Layout], bool]:
-    from roomfit.check import audit
+    from roomfit.audit.check import audit
 
     def judge(layout: Layout) -> bool:
         return audit(plan.with_layout(layout), rules).passed
@@ -245,7 +245,7 @@ def _audit_passes(plan: Plan, rules: RuleSet) -> Callable[[Layout], bool]:
 
 def _time_arrangement(plan: Plan, rules: RuleSet, layout: Layout) -> dict[str, Any]:
     """Audit and route-scoring time of one arrangement, its verdict and walking metres."""
-    from roomfit.check import audit
+    from roomfit.audit.check import audit
     row: dict[str, Any] = {}
     furnished = plan.with_layout(layout)
     t = time.perf_counter()
@@ -254,7 +254,7 @@ def _time_arrangement(plan: Plan, rules: RuleSet, layout: Layout) -> dict[str, A
     row["passed"] = result.passed
     row["failed_rules"] = sorted({f.rule for f in result.failures})
     try:
-        from roomfit.routes import score_routes
+        from roomfit.audit.routes import score_routes
         t = time.perf_counter()
         scores = score_routes(furnished, rules)
         row["routes_s"] = round(time.perf_counter() - t, 4)
@@ -270,7 +270,7 @@ def _time_arrangement(plan: Plan, rules: RuleSet, layout: Layout) -> dict[str, A
 
 def _run_solver(inst: Instance, rules: RuleSet, config: BenchConfig, say: Callable[[str], None]
                 ) -> dict[str, Any]:
-    from roomfit.solver import SolveOptions, solve
+    from roomfit.solve.search import SolveOptions, solve
     limit = config.time_budget
     if "three-rooms" in inst.tags:
         limit = max(limit, 12.0)

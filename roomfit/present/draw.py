@@ -9,8 +9,8 @@ studio and a large flat. The visual language (colours, line styles, symbols) is 
 The output is a standalone SVG document without an XML declaration, so it can be written to a
 file or embedded in an HTML page as it is.
 
->>> from roomfit.plan import Plan, Room
->>> from roomfit.rules import load_ruleset
+>>> from roomfit.plan.data import Plan, Room
+>>> from roomfit.rules.sets import load_ruleset
 >>> plan = Plan("Box", (Room("r", "Room", "living", ((0, 0), (3000, 0), (3000, 2000), (0, 2000))),))
 >>> svg = draw_svg(plan, load_ruleset("everyday"))
 >>> svg.startswith("<svg") and "6.00 m²" in svg
@@ -22,15 +22,13 @@ from __future__ import annotations
 import math
 import textwrap
 from collections.abc import Sequence
-from dataclasses import dataclass
 from xml.sax.saxutils import escape, quoteattr
 
 from shapely import LineString, Point, Polygon, box
 from shapely.geometry.base import BaseGeometry
 from shapely.ops import polylabel, unary_union
 
-from roomfit.catalog import resolve_pieces
-from roomfit.geometry import (
+from roomfit.audit.geometry import (
     door_leaf,
     door_shape,
     fixture_polygon,
@@ -42,11 +40,13 @@ from roomfit.geometry import (
     use_zones,
     window_segment,
 )
-from roomfit.plan import Leaf, Plan
-from roomfit.planfile import MAX_WALL_THICKNESS
-from roomfit.rules import RuleSet
+from roomfit.audit.marks import Mark, Path
+from roomfit.plan.data import Leaf, Plan
+from roomfit.plan.planfile import MAX_WALL_THICKNESS
+from roomfit.rules.catalog import resolve_pieces
+from roomfit.rules.sets import RuleSet
 
-__all__ = ["Mark", "Path", "STYLE", "SCALE_BAR_MM", "EXTERIOR_WALL", "draw_svg"]
+__all__ = ["STYLE", "SCALE_BAR_MM", "EXTERIOR_WALL", "draw_svg"]
 
 #: Length of the scale bar (mm).
 SCALE_BAR_MM = 1000
@@ -84,29 +84,6 @@ _MARGIN_MM = 500
 _CAUTION = ("Advisory drawing: clearances shown are the rule set's figures. Local building codes, "
             "the accessibility standards in force where the client lives, and licensed "
             "professionals decide.")
-
-
-@dataclass(frozen=True)
-class Mark:
-    """Something to highlight on a drawing (a failed rule, say).
-
-    ``kind`` is ``"fail"`` or ``"note"``; ``where`` a point to number, ``outline`` a polygon
-    to outline (either may be missing; a mark with neither appears in the legend only).
-    """
-
-    kind: str
-    label: str
-    where: tuple[float, float] | None
-    outline: tuple[tuple[float, float], ...]
-
-
-@dataclass(frozen=True)
-class Path:
-    """A walking route to draw: plan points in mm, dashed when ``night``."""
-
-    label: str
-    points: tuple[tuple[float, float], ...]
-    night: bool = False
 
 
 def _num(v: float) -> str:

@@ -20,8 +20,8 @@ from dataclasses import dataclass
 from importlib import resources
 
 from roomfit.errors import PlanError, Problem
-from roomfit.plan import Piece, Plan
-from roomfit.rules import RuleSet
+from roomfit.plan.data import Piece, Plan
+from roomfit.rules.sets import RuleSet
 
 __all__ = [
     "RELATIONS",

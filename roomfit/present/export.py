@@ -12,8 +12,8 @@ the room, door, window, fitting or piece it belongs to) and ``properties.label``
 own ``id`` is ``"<kind>:<id>"`` (use zones add the side), unique in the collection. Lengths in
 properties end in ``_mm``, areas in ``_m2``.
 
->>> from roomfit.plan import Plan, Room
->>> from roomfit.rules import load_ruleset
+>>> from roomfit.plan.data import Plan, Room
+>>> from roomfit.rules.sets import load_ruleset
 >>> fc = to_geojson(Plan("Box", (Room("r", "Room", "living", ((0, 0), (3000, 0), (3000, 2000), (0, 2000))),)),
 ...                 load_ruleset("everyday"))
 >>> fc["features"][0]["geometry"]["coordinates"][0][:3]
@@ -32,8 +32,7 @@ from shapely.geometry import mapping
 from shapely.geometry.base import BaseGeometry
 from shapely.geometry.polygon import orient
 
-from roomfit.catalog import resolve_pieces
-from roomfit.geometry import (
+from roomfit.audit.geometry import (
     door_leaf,
     door_shape,
     fixture_polygon,
@@ -44,8 +43,9 @@ from roomfit.geometry import (
     use_zones,
     window_segment,
 )
-from roomfit.plan import Plan
-from roomfit.rules import RuleSet
+from roomfit.plan.data import Plan
+from roomfit.rules.catalog import resolve_pieces
+from roomfit.rules.sets import RuleSet
 
 __all__ = ["CRS_NOTE", "to_geojson"]
 

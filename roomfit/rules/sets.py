@@ -37,7 +37,7 @@ from fractions import Fraction
 from importlib import resources
 
 from roomfit.errors import Problem, RuleError
-from roomfit.units import MM_PER
+from roomfit.plan.units import MM_PER
 
 __all__ = [
     "Rule",

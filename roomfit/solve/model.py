@@ -43,8 +43,7 @@ from shapely import box
 from shapely.geometry import Polygon
 from shapely.geometry.base import BaseGeometry
 
-from roomfit.catalog import PieceSpec, ZoneReq
-from roomfit.geometry import (
+from roomfit.audit.geometry import (
     door_shapes,
     fixture_polygon,
     fixture_zone,
@@ -53,8 +52,9 @@ from roomfit.geometry import (
     side_direction,
     window_band,
 )
-from roomfit.plan import Placement, Plan, Room, Trip
-from roomfit.rules import RuleSet
+from roomfit.plan.data import Placement, Plan, Room, Trip
+from roomfit.rules.catalog import PieceSpec, ZoneReq
+from roomfit.rules.sets import RuleSet
 
 __all__ = [
     "Rect",

@@ -2,7 +2,7 @@
 
 The page holds, for the client and their designer or therapist: the plan's name, client,
 address, date and rule set; the caution; each arrangement drawn to scale (inline SVG from
-:func:`roomfit.draw.draw_svg`) with its routine routes and failed rules marked; the metrics
+:func:`roomfit.present.draw.draw_svg`) with its routine routes and failed rules marked; the metrics
 table with the best value per metric marked; each trip's route; every rule finding with its
 source. No scripts, no external files: it opens offline and prints as is.
 
@@ -16,9 +16,9 @@ import datetime as _dt
 import re
 from html import escape
 
-from roomfit.check import AREA_RULES, marks_for
-from roomfit.compare import METRICS, Comparison, Row
-from roomfit.draw import draw_svg
+from roomfit.audit.check import AREA_RULES, marks_for
+from roomfit.present.compare import METRICS, Comparison, Row
+from roomfit.present.draw import draw_svg
 
 __all__ = ["PDF_NOTE", "build_report", "drawing"]
 

@@ -51,10 +51,11 @@ from shapely.geometry import LineString
 from shapely.geometry.base import BaseGeometry
 from shapely.ops import nearest_points, unary_union
 
-from roomfit import geometry as geo
-from roomfit.catalog import PieceSpec, resolve_pieces
-from roomfit.plan import OUTSIDE, Placement, Plan
-from roomfit.rules import Rule, RuleSet
+from roomfit.audit import geometry as geo
+from roomfit.audit.marks import Mark
+from roomfit.plan.data import OUTSIDE, Placement, Plan
+from roomfit.rules.catalog import PieceSpec, resolve_pieces
+from roomfit.rules.sets import Rule, RuleSet
 
 __all__ = [
     "RULE_IDS",
@@ -1185,7 +1186,6 @@ def summary_text(result: Audit, rules: RuleSet) -> str:
 
 
 def marks_for(result: Audit) -> list:
-    """Marks for a drawing: one ``fail`` mark per failed finding (``draw.Mark``)."""
-    from roomfit.draw import Mark  # drawing is a later stage; import it only when asked
+    """Marks for a drawing: one ``fail`` mark per failed finding (``marks.Mark``)."""
 
     return [Mark("fail", f"{f.rule}: {f.message}", f.where, f.outline) for f in result.failures]

@@ -24,11 +24,11 @@ from dataclasses import dataclass, replace
 from ortools.sat.python import cp_model
 from shapely.ops import unary_union
 
-from roomfit.catalog import PieceSpec, load_catalog
-from roomfit.geometry import door_shapes, fixture_polygon, fixture_zone, room_polygon
-from roomfit.model import build_model, tune
-from roomfit.plan import Plan
-from roomfit.rules import RuleSet
+from roomfit.audit.geometry import door_shapes, fixture_polygon, fixture_zone, room_polygon
+from roomfit.plan.data import Plan
+from roomfit.rules.catalog import PieceSpec, load_catalog
+from roomfit.rules.sets import RuleSet
+from roomfit.solve.model import build_model, tune
 
 __all__ = ["Explanation", "precheck", "explain"]
 

@@ -2,7 +2,7 @@
 
 Metrics (see ``docs/routes.md``):
 
-- rules failed: failing findings of :func:`roomfit.check.audit` (fewer is better);
+- rules failed: failing findings of :func:`roomfit.audit.check.audit` (fewer is better);
 - walking per day: :attr:`RouteScores.walking_m_per_day`; an arrangement that leaves a
   routine trip unreachable ranks behind every one that does not, whatever its metres;
 - narrowest passage on any routine route (mm, wider is better; an unreachable trip counts
@@ -27,12 +27,12 @@ from importlib import resources
 from shapely import LineString, Polygon
 from shapely.ops import unary_union
 
-from roomfit.catalog import resolve_pieces
-from roomfit.check import Audit, audit
-from roomfit.geometry import fixture_polygon, footprint, lies_flat, side_direction, window_segment
-from roomfit.plan import Plan
-from roomfit.routes import RouteScores, score_routes
-from roomfit.rules import RuleSet, rules_for
+from roomfit.audit.check import Audit, audit
+from roomfit.audit.geometry import fixture_polygon, footprint, lies_flat, side_direction, window_segment
+from roomfit.audit.routes import RouteScores, score_routes
+from roomfit.plan.data import Plan
+from roomfit.rules.catalog import resolve_pieces
+from roomfit.rules.sets import RuleSet, rules_for
 
 __all__ = [
     "METRICS",

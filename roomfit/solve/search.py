@@ -2,13 +2,13 @@
 
 ``solve(plan, rules, options)`` splits the plan into groups of rooms that share no piece
 (rooms whose pieces are all assigned stand alone), builds the placement model of each group
-(``roomfit.model``), and runs a verify-and-cut loop: every layout CP-SAT returns is audited
-with exact geometry (``roomfit.check.audit``); a layout that fails is cut off (one of the
+(``roomfit.solve.model``), and runs a verify-and-cut loop: every layout CP-SAT returns is audited
+with exact geometry (``roomfit.audit.check.audit``); a layout that fails is cut off (one of the
 pieces the failed finding names must move or turn) and the model is solved again. Only
 layouts that pass the audit are returned.
 
 Candidates are ranked as ``roomfit compare`` ranks plans: by the route scorer's rank key
-(``roomfit.routes.score_routes``: unreachable trips, then walking metres per day), the
+(``roomfit.audit.routes.score_routes``: unreachable trips, then walking metres per day), the
 objective breaking ties.
 
 Outcomes (``SolveResult.status``): ``optimal`` (every candidate is proven optimal for the
@@ -17,7 +17,7 @@ arrangement exists in the model, with an :class:`Explanation`), ``timeout`` (not
 checker-passing found in time; not proven impossible).
 
 The search first runs a *strengthened* model (pairwise gap rules and door walkways, see
-``roomfit.model``) that avoids most circulation failures; if that model has no valid layout
+``roomfit.solve.model``) that avoids most circulation failures; if that model has no valid layout
 it falls back to the plain model. "Impossible" is only said of the plain model, never of the
 strengthened one nor after a cut.
 
@@ -38,12 +38,12 @@ from dataclasses import dataclass, replace
 
 from ortools.sat.python import cp_model
 
-from roomfit.catalog import PieceSpec, resolve_pieces
-from roomfit.explain import Explanation, explain, precheck
-from roomfit.model import Built, build_model, decode, differs, hint, room_geometry, tune
-from roomfit.plan import Layout, Placement, Plan, Trip
-from roomfit.routes import default_routines, score_routes
-from roomfit.rules import RuleSet
+from roomfit.audit.routes import default_routines, score_routes
+from roomfit.plan.data import Layout, Placement, Plan, Trip
+from roomfit.rules.catalog import PieceSpec, resolve_pieces
+from roomfit.rules.sets import RuleSet
+from roomfit.solve.explain import Explanation, explain, precheck
+from roomfit.solve.model import Built, build_model, decode, differs, hint, room_geometry, tune
 
 __all__ = [
     "SolveOptions",
@@ -105,7 +105,7 @@ class Candidate:
     """One verified arrangement: ``objective`` (lower is better), the proven ``bound``,
     whether it is proven ``optimal`` (under the diversity rules of earlier candidates), its
     ``rank`` (0 = best by ``route_key``, then objective) and ``route_key``, the route scorer's
-    rank key (unreachable trips, walking metres per day; ``roomfit.routes``)."""
+    rank key (unreachable trips, walking metres per day; ``roomfit.audit.routes``)."""
 
     layout: Layout
     objective: float
@@ -249,7 +249,7 @@ def routines_of(plan: Plan) -> tuple[Trip, ...]:
 
 
 def _audit(plan: Plan, rules: RuleSet):
-    from roomfit.check import audit  # the judge; imported here to keep the import graph one-way
+    from roomfit.audit.check import audit  # the judge; imported here to keep the import graph one-way
 
     return audit(plan, rules)
 

@@ -7,7 +7,7 @@ problem before raising one :class:`PlanError` whose problems each name the field
 (``rooms[2].outline``) and say what is wrong, with numbers. Unknown keys are rejected.
 
 Writing keeps the file's unit and writes atomically; read -> write -> read gives an equal
-:class:`~roomfit.plan.Plan`.
+:class:`~roomfit.plan.data.Plan`.
 """
 
 from __future__ import annotations
@@ -24,11 +24,10 @@ import tomli_w
 from shapely import LineString, Point, Polygon
 from shapely.validation import explain_validity
 
-from roomfit.catalog import load_catalog
+from roomfit.audit.geometry import nearest_edge, wall_direction
 from roomfit.errors import PlanError, Problem, RoomfitError
 from roomfit.files import atomic_write
-from roomfit.geometry import nearest_edge, wall_direction
-from roomfit.plan import (
+from roomfit.plan.data import (
     FORMAT_VERSION,
     OUTSIDE,
     ROTATIONS,
@@ -43,8 +42,9 @@ from roomfit.plan import (
     Trip,
     Window,
 )
-from roomfit.rules import load_ruleset
-from roomfit.units import MM_PER, UNITS, parse_length
+from roomfit.plan.units import MM_PER, UNITS, parse_length
+from roomfit.rules.catalog import load_catalog
+from roomfit.rules.sets import load_ruleset
 
 __all__ = [
     "VERSION_KEY",

@@ -50,8 +50,7 @@ from shapely.geometry.base import BaseGeometry
 from shapely.geometry.polygon import orient
 from shapely.ops import nearest_points, unary_union
 
-from roomfit.catalog import PieceSpec, resolve_pieces
-from roomfit.geometry import (
+from roomfit.audit.geometry import (
     door_shape,
     fixture_polygon,
     fixture_zone,
@@ -59,8 +58,10 @@ from roomfit.geometry import (
     lies_flat,
     use_zones,
 )
-from roomfit.plan import OUTSIDE, Plan, Trip
-from roomfit.rules import RuleSet
+from roomfit.audit.marks import Path
+from roomfit.plan.data import OUTSIDE, Plan, Trip
+from roomfit.rules.catalog import PieceSpec, resolve_pieces
+from roomfit.rules.sets import RuleSet
 
 __all__ = [
     "NIGHT_LONG_MM",
@@ -167,8 +168,7 @@ class RouteScores:
         return (len(self.unreachable), self.walking_m_per_day)
 
     def paths(self) -> tuple:
-        """The reachable routes as ``roomfit.draw.Path`` objects for drawing."""
-        from roomfit.draw import Path  # draw imports nothing of ours; keep the edge one-way
+        """The reachable routes as ``roomfit.audit.marks.Path`` objects for drawing."""
 
         return tuple(Path(t.name, t.points, t.night) for t in self.trips if t.reachable)
 
@@ -784,7 +784,7 @@ def default_routines(plan: Plan) -> tuple[Trip, ...]:
     """
     categories: dict[str, str] = {}
     try:
-        from roomfit.catalog import load_catalog
+        from roomfit.rules.catalog import load_catalog
 
         catalog = load_catalog()
     except Exception:  # noqa: BLE001 - a broken catalogue only loses the defaults
@@ -818,8 +818,8 @@ def route(plan: Plan, rules: RuleSet, origin: str | XY, target: str | XY,
 
     ``width`` is the body width (mm), by default the rule set's ``route.width``.
 
-    >>> from roomfit.plan import Room, Plan
-    >>> from roomfit.rules import load_ruleset
+    >>> from roomfit.plan.data import Room, Plan
+    >>> from roomfit.rules.sets import load_ruleset
     >>> plan = Plan("empty", (Room("r", "R", "living", ((0, 0), (4000, 0), (4000, 3000), (0, 3000))),))
     >>> round(route(plan, load_ruleset("everyday"), (1000, 1000), (3000, 2000)).length_mm, 1)
     2236.1

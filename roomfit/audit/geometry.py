@@ -18,9 +18,9 @@ from shapely.geometry import LineString, Point
 from shapely.geometry.base import BaseGeometry
 from shapely.ops import unary_union
 
-from roomfit.catalog import PieceSpec, ZoneReq
-from roomfit.plan import OUTSIDE, Door, Fixture, Leaf, Placement, Plan, Room, Window
-from roomfit.rules import RuleSet
+from roomfit.plan.data import OUTSIDE, Door, Fixture, Leaf, Placement, Plan, Room, Window
+from roomfit.rules.catalog import PieceSpec, ZoneReq
+from roomfit.rules.sets import RuleSet
 
 __all__ = [
     "ARC_SEGMENTS",
