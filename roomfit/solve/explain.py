@@ -89,14 +89,14 @@ def precheck(plan: Plan, rules: RuleSet, specs: tuple[PieceSpec, ...]) -> Explan
 
 def _check(built, solver_params, groups: list[str], deadline: float) -> int:
     m = built.model
-    m.ClearAssumptions()
-    m.AddAssumptions([built.groups[g] for g in groups])
+    m.clear_assumptions()
+    m.add_assumptions([built.groups[g] for g in groups])
     solver = cp_model.CpSolver()
     solver.parameters.num_workers = 1
     solver.parameters.random_seed = solver_params.seed
     solver.parameters.max_time_in_seconds = max(0.05, min(5.0, deadline - time.monotonic()))
     tune(solver.parameters)
-    status = solver.Solve(m)
+    status = solver.solve(m)
     _check.last = solver  # type: ignore[attr-defined]
     return status
 
@@ -133,14 +133,14 @@ def explain(plan: Plan, rules: RuleSet, specs: list[PieceSpec], rooms: list[str]
     by_id = {s.id: s for s in specs}
     everything = list(built.groups)
     status = _check(built, options, everything, deadline)
-    names = {v.Index(): k for k, v in built.groups.items()}
+    names = {v.index: k for k, v in built.groups.items()}
     room_names = ", ".join(plan.room(r).label for r in rooms)
     if status != cp_model.INFEASIBLE:
         return Explanation(
             f"No arrangement was found in the {room_names} on a {options.grid} mm grid, but no "
             f"single clash of rules could be isolated in the time available.",
             tuple(by_id), (), ())
-    core = [names[i] for i in _check.last.SufficientAssumptionsForInfeasibility()]  # type: ignore
+    core = [names[i] for i in _check.last.sufficient_assumptions_for_infeasibility()]  # type: ignore
     core = core or everything
     # shrink to a minimal clash: drop one group at a time
     for g in list(core):
@@ -193,7 +193,7 @@ def _smaller(plan: Plan, rules: RuleSet, specs: list[PieceSpec], rooms: list[str
             solver.parameters.random_seed = options.seed
             solver.parameters.max_time_in_seconds = max(0.05, min(3.0, deadline - time.monotonic()))
             tune(solver.parameters)
-            if solver.Solve(built.model) in (cp_model.FEASIBLE, cp_model.OPTIMAL):
+            if solver.solve(built.model) in (cp_model.FEASIBLE, cp_model.OPTIMAL):
                 out.append(f"a {t.label} ({t.width} x {t.depth} mm) instead of the {spec.label} "
                            f"({spec.width} x {spec.depth} mm) fits")
                 break

@@ -306,10 +306,10 @@ class PieceVars:
     def ends(self, m: cp_model.CpModel) -> tuple[cp_model.IntVar, cp_model.IntVar]:
         """Variables for the footprint's right and top edges (made once, then reused)."""
         if self._ends is None:
-            xe = m.NewIntVar(-10_000_000, 10_000_000, f"xe_{self.spec.id}")
-            ye = m.NewIntVar(-10_000_000, 10_000_000, f"ye_{self.spec.id}")
-            m.Add(xe == self.x + self.width_expr())
-            m.Add(ye == self.y + self.depth_expr())
+            xe = m.new_int_var(-10_000_000, 10_000_000, f"xe_{self.spec.id}")
+            ye = m.new_int_var(-10_000_000, 10_000_000, f"ye_{self.spec.id}")
+            m.add(xe == self.x + self.width_expr())
+            m.add(ye == self.y + self.depth_expr())
             self._ends = (xe, ye)
         return self._ends
 
@@ -337,9 +337,9 @@ class Built:
 def _fixed_box(m: cp_model.CpModel, r: Rect, lit: cp_model.IntVar | None = None):
     x0, y0, x1, y1 = r
     if lit is None:
-        return (m.NewFixedSizeIntervalVar(x0, x1 - x0, ""), m.NewFixedSizeIntervalVar(y0, y1 - y0, ""))
-    return (m.NewOptionalFixedSizeIntervalVar(x0, x1 - x0, lit, ""),
-            m.NewOptionalFixedSizeIntervalVar(y0, y1 - y0, lit, ""))
+        return (m.new_fixed_size_interval_var(x0, x1 - x0, ""), m.new_fixed_size_interval_var(y0, y1 - y0, ""))
+    return (m.new_optional_fixed_size_interval_var(x0, x1 - x0, lit, ""),
+            m.new_optional_fixed_size_interval_var(y0, y1 - y0, lit, ""))
 
 
 #: Added to the route width in the gap rules (mm): a gap exactly as wide as the route closes
@@ -353,13 +353,13 @@ GRID_DOMAINS = False
 
 def _pos_var(m: cp_model.CpModel, values: set[int], name: str) -> cp_model.IntVar:
     if GRID_DOMAINS or len(values) == 1:
-        return m.NewIntVarFromDomain(cp_model.Domain.FromValues(sorted(values)), name)
-    return m.NewIntVar(min(values), max(values), name)
+        return m.new_int_var_from_domain(cp_model.Domain.from_values(sorted(values)), name)
+    return m.new_int_var(min(values), max(values), name)
 
 
 def _no_overlap(m: cp_model.CpModel, boxes: list) -> None:
     if len(boxes) > 1:
-        m.AddNoOverlap2D([b[0] for b in boxes], [b[1] for b in boxes])
+        m.add_no_overlap_2d([b[0] for b in boxes], [b[1] for b in boxes])
 
 
 def _positions(lo: int, hi: int, grid: int, extra: set[int]) -> set[int]:
@@ -415,7 +415,7 @@ def build_model(
         if not assume:
             return None
         if name not in groups:
-            groups[name] = m.NewBoolVar(name)
+            groups[name] = m.new_bool_var(name)
         return groups[name]
 
     pieces: list[PieceVars] = []
@@ -451,21 +451,21 @@ def build_model(
             xs, ys = {0}, {0}
         x = _pos_var(m, xs, f"x_{spec.id}")
         y = _pos_var(m, ys, f"y_{spec.id}")
-        alts = {k: m.NewBoolVar(f"a_{spec.id}_{k[0]}_{k[1]}") for k in alt_keys}
+        alts = {k: m.new_bool_var(f"a_{spec.id}_{k[0]}_{k[1]}") for k in alt_keys}
         pv = PieceVars(spec, x, y, alts, locked)
         present = group(f"piece.{spec.id}")
         if present is None:
-            m.AddExactlyOne(alts.values())
+            m.add_exactly_one(alts.values())
         else:
-            m.Add(sum(alts.values()) <= 1)
-            m.Add(sum(alts.values()) >= 1).OnlyEnforceIf(present)
+            m.add(sum(alts.values()) <= 1)
+            m.add(sum(alts.values()) >= 1).only_enforce_if(present)
         for (r, rot), lit in alts.items():
             bx0, by0, bx1, by1 = geo[r].bbox
             w, d = pv.size(rot)
-            m.Add(x >= bx0).OnlyEnforceIf(lit)
-            m.Add(x + w <= bx1).OnlyEnforceIf(lit)
-            m.Add(y >= by0).OnlyEnforceIf(lit)
-            m.Add(y + d <= by1).OnlyEnforceIf(lit)
+            m.add(x >= bx0).only_enforce_if(lit)
+            m.add(x + w <= bx1).only_enforce_if(lit)
+            m.add(y >= by0).only_enforce_if(lit)
+            m.add(y + d <= by1).only_enforce_if(lit)
         pieces.append(pv)
 
     prefs = load_preferences()
@@ -482,36 +482,36 @@ def build_model(
             for wl in geo[r].walls:
                 if wl.outward != back:
                     continue
-                c = m.NewBoolVar("")
+                c = m.new_bool_var("")
                 if wl.axis == "x":
                     span = d
-                    m.Add(pv.x == (wl.at if back[0] == -1 else wl.at - w)).OnlyEnforceIf(c)
-                    m.Add(pv.y >= wl.lo).OnlyEnforceIf(c)
-                    m.Add(pv.y + span <= wl.hi).OnlyEnforceIf(c)
+                    m.add(pv.x == (wl.at if back[0] == -1 else wl.at - w)).only_enforce_if(c)
+                    m.add(pv.y >= wl.lo).only_enforce_if(c)
+                    m.add(pv.y + span <= wl.hi).only_enforce_if(c)
                 else:
                     span = w
-                    m.Add(pv.y == (wl.at if back[1] == -1 else wl.at - d)).OnlyEnforceIf(c)
-                    m.Add(pv.x >= wl.lo).OnlyEnforceIf(c)
-                    m.Add(pv.x + span <= wl.hi).OnlyEnforceIf(c)
-                m.AddImplication(c, lit)
+                    m.add(pv.y == (wl.at if back[1] == -1 else wl.at - d)).only_enforce_if(c)
+                    m.add(pv.x >= wl.lo).only_enforce_if(c)
+                    m.add(pv.x + span <= wl.hi).only_enforce_if(c)
+                m.add_implication(c, lit)
                 choices.append(c)
             pv.walls[(r, rot)] = choices
             if need:
                 if wall_grp is None:
-                    m.Add(sum(choices) == lit)
+                    m.add(sum(choices) == lit)
                 else:
-                    m.Add(sum(choices) == lit).OnlyEnforceIf(wall_grp)
-                    m.Add(sum(choices) <= lit)
+                    m.add(sum(choices) == lit).only_enforce_if(wall_grp)
+                    m.add(sum(choices) <= lit)
             else:
-                m.Add(sum(choices) <= lit)
+                m.add(sum(choices) <= lit)
 
     # footprints per room
     fp: dict[str, list[tuple[PieceVars, int, object, object]]] = {r: [] for r in geo}
     for pv in pieces:
         for (r, rot), lit in pv.alts.items():
             w, d = pv.size(rot)
-            ix = m.NewOptionalFixedSizeIntervalVar(pv.x, w, lit, "")
-            iy = m.NewOptionalFixedSizeIntervalVar(pv.y, d, lit, "")
+            ix = m.new_optional_fixed_size_interval_var(pv.x, w, lit, "")
+            iy = m.new_optional_fixed_size_interval_var(pv.y, d, lit, "")
             fp[r].append((pv, rot, ix, iy))
 
     turning = rules.mm("turning.size")
@@ -547,20 +547,20 @@ def build_model(
                     continue
                 pres = lit
                 if zlit is not None:
-                    pres = m.NewBoolVar("")
-                    m.AddBoolAnd([lit, zlit]).OnlyEnforceIf(pres)
-                    m.AddBoolOr([lit.Not(), zlit.Not()]).OnlyEnforceIf(pres.Not())
+                    pres = m.new_bool_var("")
+                    m.add_bool_and([lit, zlit]).only_enforce_if(pres)
+                    m.add_bool_or([lit.negated(), zlit.negated()]).only_enforce_if(pres.negated())
                 bx0, by0, bx1, by1 = g.bbox
                 for z in pv.spec.zones:
                     if z.depth <= 0:
                         continue
                     sx, wx, sy, wy = _zone_rect_expr(pv, rot, z)
-                    m.Add(sx >= bx0).OnlyEnforceIf(pres)
-                    m.Add(sx + wx <= bx1).OnlyEnforceIf(pres)
-                    m.Add(sy >= by0).OnlyEnforceIf(pres)
-                    m.Add(sy + wy <= by1).OnlyEnforceIf(pres)
-                    zb.append((m.NewOptionalFixedSizeIntervalVar(sx, wx, pres, ""),
-                               m.NewOptionalFixedSizeIntervalVar(sy, wy, pres, "")))
+                    m.add(sx >= bx0).only_enforce_if(pres)
+                    m.add(sx + wx <= bx1).only_enforce_if(pres)
+                    m.add(sy >= by0).only_enforce_if(pres)
+                    m.add(sy + wy <= by1).only_enforce_if(pres)
+                    zb.append((m.new_optional_fixed_size_interval_var(sx, wx, pres, ""),
+                               m.new_optional_fixed_size_interval_var(sy, wy, pres, "")))
             if not zb:
                 continue
             others = [(ix, iy) for q, _, ix, iy in fp[r] if q is not pv]
@@ -590,17 +590,17 @@ def _turning_boxes(m: cp_model.CpModel, g: RoomGeo, size: int, shape: str, grid:
     bx0, by0, bx1, by1 = g.bbox
     if size > bx1 - bx0 or size > by1 - by0:
         if lit is None:
-            m.AddBoolOr([])  # no room for a turning space at all: infeasible
+            m.add_bool_or([])  # no room for a turning space at all: infeasible
         else:
-            m.AddBoolOr([lit.Not()])
+            m.add_bool_or([lit.negated()])
         return []
     tx = _pos_var(m, _positions(bx0, bx1 - size, grid, set()), "turn_x")
     ty = _pos_var(m, _positions(by0, by1 - size, grid, set()), "turn_y")
 
     def iv(start, length):
         if lit is None:
-            return m.NewFixedSizeIntervalVar(start, length, "")
-        return m.NewOptionalFixedSizeIntervalVar(start, length, lit, "")
+            return m.new_fixed_size_interval_var(start, length, "")
+        return m.new_optional_fixed_size_interval_var(start, length, lit, "")
 
     if shape == "square":
         return [(iv(tx, size), iv(ty, size))]
@@ -638,17 +638,17 @@ def _gap_rules(m: cp_model.CpModel, pieces: list[PieceVars], g: RoomGeo, route: 
             if frozenset((p.spec.id, q.spec.id)) in skip:
                 continue
             qxe, qye = q.ends(m)
-            opts = [m.NewBoolVar("") for _ in range(5)]
-            m.Add(qxe + route <= p.x).OnlyEnforceIf(opts[0])
-            m.Add(pxe + route <= q.x).OnlyEnforceIf(opts[1])
-            m.Add(qye + route <= p.y).OnlyEnforceIf(opts[2])
-            m.Add(pye + route <= q.y).OnlyEnforceIf(opts[3])
-            m.Add(q.x <= pxe + near).OnlyEnforceIf(opts[4])
-            m.Add(p.x <= qxe + near).OnlyEnforceIf(opts[4])
-            m.Add(q.y <= pye + near).OnlyEnforceIf(opts[4])
-            m.Add(p.y <= qye + near).OnlyEnforceIf(opts[4])
+            opts = [m.new_bool_var("") for _ in range(5)]
+            m.add(qxe + route <= p.x).only_enforce_if(opts[0])
+            m.add(pxe + route <= q.x).only_enforce_if(opts[1])
+            m.add(qye + route <= p.y).only_enforce_if(opts[2])
+            m.add(pye + route <= q.y).only_enforce_if(opts[3])
+            m.add(q.x <= pxe + near).only_enforce_if(opts[4])
+            m.add(p.x <= qxe + near).only_enforce_if(opts[4])
+            m.add(q.y <= pye + near).only_enforce_if(opts[4])
+            m.add(p.y <= qye + near).only_enforce_if(opts[4])
             enf = [_in_room_lit(m, p, r), _in_room_lit(m, q, r)]
-            m.AddBoolOr(opts).OnlyEnforceIf(enf)
+            m.add_bool_or(opts).only_enforce_if(enf)
         if any(rel == "beside_head" for rel, _ in p.spec.relations):
             continue  # a nightstand's nook between the bed and a wall is no walkway
         bx0, by0, bx1, by1 = g.bbox
@@ -656,26 +656,26 @@ def _gap_rules(m: cp_model.CpModel, pieces: list[PieceVars], g: RoomGeo, route: 
         for rect in (*g.fittings, *g.hard, (bx0 - 1, by0, bx0, by1), (bx1, by0, bx1 + 1, by1),
                      (bx0, by0 - 1, bx1, by0), (bx0, by1, bx1, by1 + 1)):
             x0, y0, x1, y1 = rect
-            opts = [m.NewBoolVar("") for _ in range(5)]
-            m.Add(x1 + route <= p.x).OnlyEnforceIf(opts[0])
-            m.Add(pxe + route <= x0).OnlyEnforceIf(opts[1])
-            m.Add(y1 + route <= p.y).OnlyEnforceIf(opts[2])
-            m.Add(pye + route <= y0).OnlyEnforceIf(opts[3])
-            m.Add(x0 <= pxe + near).OnlyEnforceIf(opts[4])
-            m.Add(p.x <= x1 + near).OnlyEnforceIf(opts[4])
-            m.Add(y0 <= pye + near).OnlyEnforceIf(opts[4])
-            m.Add(p.y <= y1 + near).OnlyEnforceIf(opts[4])
-            m.AddBoolOr(opts).OnlyEnforceIf(inr)
+            opts = [m.new_bool_var("") for _ in range(5)]
+            m.add(x1 + route <= p.x).only_enforce_if(opts[0])
+            m.add(pxe + route <= x0).only_enforce_if(opts[1])
+            m.add(y1 + route <= p.y).only_enforce_if(opts[2])
+            m.add(pye + route <= y0).only_enforce_if(opts[3])
+            m.add(x0 <= pxe + near).only_enforce_if(opts[4])
+            m.add(p.x <= x1 + near).only_enforce_if(opts[4])
+            m.add(y0 <= pye + near).only_enforce_if(opts[4])
+            m.add(p.y <= y1 + near).only_enforce_if(opts[4])
+            m.add_bool_or(opts).only_enforce_if(inr)
 
 
 def _in_room_lit(m: cp_model.CpModel, pv: PieceVars, room: str) -> cp_model.IntVar:
     """A literal true exactly when ``pv`` stands in ``room`` (the literal itself for one alt)."""
     lits = [lit for (r, _), lit in pv.alts.items() if r == room]
     if len(lits) == len(pv.alts):
-        return m.NewConstant(1)
-    b = m.NewBoolVar("")
-    m.AddBoolOr(lits).OnlyEnforceIf(b)
-    m.AddBoolAnd([lit.Not() for lit in lits]).OnlyEnforceIf(b.Not())
+        return m.new_constant(1)
+    b = m.new_bool_var("")
+    m.add_bool_or(lits).only_enforce_if(b)
+    m.add_bool_and([lit.negated() for lit in lits]).only_enforce_if(b.negated())
     return b
 
 
@@ -701,12 +701,12 @@ def _extent(pv: PieceVars, side: str) -> int:
 def _l1(m: cp_model.CpModel, ax, ay, bx, by, scale: int) -> cp_model.IntVar:
     """A variable at least the L1 distance between two doubled points, in units of ``scale`` mm."""
     big = 10_000_000
-    dx = m.NewIntVar(0, big, "")
-    dy = m.NewIntVar(0, big, "")
-    m.AddAbsEquality(dx, ax - bx)
-    m.AddAbsEquality(dy, ay - by)
-    d = m.NewIntVar(0, big, "")
-    m.Add(d * 2 * scale >= dx + dy)
+    dx = m.new_int_var(0, big, "")
+    dy = m.new_int_var(0, big, "")
+    m.add_abs_equality(dx, ax - bx)
+    m.add_abs_equality(dy, ay - by)
+    d = m.new_int_var(0, big, "")
+    m.add(d * 2 * scale >= dx + dy)
     return d
 
 
@@ -730,24 +730,24 @@ def _gap_in(m: cp_model.CpModel, near: PieceVars, far: PieceVars, axis: int, sig
     """Under ``lit``: ``far`` stands beyond ``near``'s side facing ``sign`` along ``axis``,
     ``lo`` to ``hi`` mm from it."""
     gap = (_lo(far, axis) - _hi(m, near, axis)) if sign > 0 else (_lo(near, axis) - _hi(m, far, axis))
-    m.Add(gap >= lo).OnlyEnforceIf(lit)
-    m.Add(gap <= hi).OnlyEnforceIf(lit)
+    m.add(gap >= lo).only_enforce_if(lit)
+    m.add(gap <= hi).only_enforce_if(lit)
 
 
 def _on_axis(m: cp_model.CpModel, a: PieceVars, b: PieceVars, axis: int, tol: int,
              lit: cp_model.IntVar) -> None:
     """Under ``lit``: the centres of ``a`` and ``b`` lie within ``tol`` mm along ``axis``."""
-    m.Add(_mid2(a, axis) - _mid2(b, axis) <= 2 * tol).OnlyEnforceIf(lit)
-    m.Add(_mid2(b, axis) - _mid2(a, axis) <= 2 * tol).OnlyEnforceIf(lit)
+    m.add(_mid2(a, axis) - _mid2(b, axis) <= 2 * tol).only_enforce_if(lit)
+    m.add(_mid2(b, axis) - _mid2(a, axis) <= 2 * tol).only_enforce_if(lit)
 
 
 def _either(m: cp_model.CpModel, options: list[cp_model.IntVar]) -> cp_model.IntVar:
     """A literal that may be true only when one of ``options`` is (false when there is none)."""
-    ok = m.NewBoolVar("")
+    ok = m.new_bool_var("")
     if options:
-        m.AddBoolOr(options).OnlyEnforceIf(ok)
+        m.add_bool_or(options).only_enforce_if(ok)
     else:
-        m.Add(ok == 0)
+        m.add(ok == 0)
     return ok
 
 
@@ -774,9 +774,9 @@ def _facing(m: cp_model.CpModel, seat: PieceVars, tv: PieceVars, tol: int) -> cp
         tlit = tv.alts.get((r, (rot + 180) % 360))
         if tlit is None:
             continue
-        p = m.NewBoolVar("")
-        m.AddImplication(p, lit)
-        m.AddImplication(p, tlit)
+        p = m.new_bool_var("")
+        m.add_implication(p, lit)
+        m.add_implication(p, tlit)
         axis, sign = _axis_sign(side_direction("front", rot))
         _gap_in(m, seat, tv, axis, sign, lo, hi, p)
         _on_axis(m, seat, tv, 1 - axis, tol, p)
@@ -796,9 +796,9 @@ def _in_front(m: cp_model.CpModel, table: PieceVars, seat: PieceVars, tol: int) 
         tlits = [t for (tr, _), t in table.alts.items() if tr == r]
         if not tlits:
             continue
-        p = m.NewBoolVar("")
-        m.AddImplication(p, lit)
-        m.AddBoolOr(tlits).OnlyEnforceIf(p)
+        p = m.new_bool_var("")
+        m.add_implication(p, lit)
+        m.add_bool_or(tlits).only_enforce_if(p)
         axis, sign = _axis_sign(side_direction("front", rot))
         _gap_in(m, seat, table, axis, sign, lo, hi, p)
         _on_axis(m, seat, table, 1 - axis, tol, p)
@@ -817,17 +817,17 @@ def _beside_head(m: cp_model.CpModel, stand: PieceVars, bed: PieceVars) -> cp_mo
         head_axis, head_sign = _axis_sign(side_direction("back", rot))
         length = bed.size(rot)[head_axis]
         for sign in (1, -1):
-            p = m.NewBoolVar("")
-            m.AddImplication(p, lit)
-            m.AddBoolOr(slits).OnlyEnforceIf(p)
+            p = m.new_bool_var("")
+            m.add_implication(p, lit)
+            m.add_bool_or(slits).only_enforce_if(p)
             _gap_in(m, bed, stand, 1 - head_axis, sign, stand.spec.gap_min, stand.spec.gap_max, p)
             mid = _mid2(stand, head_axis)
             if head_sign < 0:
-                m.Add(mid >= 2 * _lo(bed, head_axis)).OnlyEnforceIf(p)
-                m.Add(mid <= 2 * _lo(bed, head_axis) + length).OnlyEnforceIf(p)
+                m.add(mid >= 2 * _lo(bed, head_axis)).only_enforce_if(p)
+                m.add(mid <= 2 * _lo(bed, head_axis) + length).only_enforce_if(p)
             else:
-                m.Add(mid <= 2 * _hi(m, bed, head_axis)).OnlyEnforceIf(p)
-                m.Add(mid >= 2 * _hi(m, bed, head_axis) - length).OnlyEnforceIf(p)
+                m.add(mid <= 2 * _hi(m, bed, head_axis)).only_enforce_if(p)
+                m.add(mid >= 2 * _hi(m, bed, head_axis) - length).only_enforce_if(p)
             options.append(p)
     return _either(m, options)
 
@@ -886,9 +886,9 @@ def _objective(m: cp_model.CpModel, pieces: list[PieceVars], geo: dict[str, Room
         # wall-loving pieces not against a wall
         if not pv.spec.against_wall and pv.walls:
             on = sum(sum(c) for c in pv.walls.values())
-            off = m.NewBoolVar("")
-            m.Add(on == 0).OnlyEnforceIf(off)
-            m.Add(on >= 1).OnlyEnforceIf(off.Not())
+            off = m.new_bool_var("")
+            m.add(on == 0).only_enforce_if(off)
+            m.add(on >= 1).only_enforce_if(off.negated())
             terms.append(int(w["wall"]) * off)
         if pv.spec.category == "bed":
             for (r, rot), choices in pv.walls.items():
@@ -899,10 +899,10 @@ def _objective(m: cp_model.CpModel, pieces: list[PieceVars], geo: dict[str, Room
                             continue
                         along = pv.x if wall.axis == "y" else pv.y
                         span = pv.size(rot)[0] if wall.axis == "y" else pv.size(rot)[1]
-                        left, right, pen = m.NewBoolVar(""), m.NewBoolVar(""), m.NewBoolVar("")
-                        m.Add(along + span <= lo).OnlyEnforceIf(left)
-                        m.Add(along >= hi).OnlyEnforceIf(right)
-                        m.AddBoolOr([left, right, pen, wl_lit.Not()])
+                        left, right, pen = m.new_bool_var(""), m.new_bool_var(""), m.new_bool_var("")
+                        m.add(along + span <= lo).only_enforce_if(left)
+                        m.add(along >= hi).only_enforce_if(right)
+                        m.add_bool_or([left, right, pen, wl_lit.negated()])
                         terms.append(int(w["bed_under_window"]) * pen)
         if pv.spec.category == "dining_table":
             runs = [(sum(px for px, _ in f.zone or f.outline) / len(f.zone or f.outline),
@@ -911,22 +911,22 @@ def _objective(m: cp_model.CpModel, pieces: list[PieceVars], geo: dict[str, Room
             if runs:
                 sx, sy = _centre2(pv)
                 ds = [_l1(m, sx, sy, round(2 * cx), round(2 * cy), 10) for cx, cy in runs]
-                best = m.NewIntVar(0, 10_000_000, "")
-                m.AddMinEquality(best, ds)
+                best = m.new_int_var(0, 10_000_000, "")
+                m.add_min_equality(best, ds)
                 terms.append(int(w["kitchen"]) * best)
         if pv.spec.category == "desk":
             wins = [(cx, cy) for r in pv.spec.rooms if r in geo for *_, cx, cy in geo[r].windows]
             if wins:
                 sx, sy = _centre2(pv)
                 ds = [_l1(m, sx, sy, 2 * cx, 2 * cy, 10) for cx, cy in wins]
-                best = m.NewIntVar(0, 10_000_000, "")
-                m.AddMinEquality(best, ds)
+                best = m.new_int_var(0, 10_000_000, "")
+                m.add_min_equality(best, ds)
                 terms.append(int(w["daylight"]) * best)
     terms += _routine_terms(m, pieces, plan, routines, prefs) if plan is not None else []
     terms += _align_terms(m, pieces, prefs)
     if not terms:
         return False
-    m.Minimize(sum(terms))
+    m.minimize(sum(terms))
     return True
 
 
@@ -1061,11 +1061,11 @@ def _align_terms(m: cp_model.CpModel, pieces: list[PieceVars], prefs: dict) -> l
         chosen = group[:k]
         for i, a in enumerate(chosen):
             for b in chosen[i + 1:]:
-                ok = m.NewBoolVar("")
-                ex, ey = m.NewBoolVar(""), m.NewBoolVar("")
-                m.Add(_mid2(a, 0) == _mid2(b, 0)).OnlyEnforceIf(ex)
-                m.Add(_mid2(a, 1) == _mid2(b, 1)).OnlyEnforceIf(ey)
-                m.AddBoolOr([ex, ey]).OnlyEnforceIf(ok)
+                ok = m.new_bool_var("")
+                ex, ey = m.new_bool_var(""), m.new_bool_var("")
+                m.add(_mid2(a, 0) == _mid2(b, 0)).only_enforce_if(ex)
+                m.add(_mid2(a, 1) == _mid2(b, 1)).only_enforce_if(ey)
+                m.add_bool_or([ex, ey]).only_enforce_if(ok)
                 terms.append(w * (1 - ok))
     return terms
 
@@ -1075,8 +1075,8 @@ def decode(built: Built, solver: cp_model.CpSolver) -> dict[str, Placement]:
     out = {}
     for pv in built.pieces:
         for (r, rot), lit in pv.alts.items():
-            if solver.Value(lit):
-                out[pv.spec.id] = Placement(solver.Value(pv.x), solver.Value(pv.y), rot, r)
+            if solver.value(lit):
+                out[pv.spec.id] = Placement(solver.value(pv.x), solver.value(pv.y), rot, r)
     return out
 
 
@@ -1095,15 +1095,15 @@ def hint(built: Built, where: dict[str, Placement]) -> None:
     """Give CP-SAT ``where`` as the starting solution of the next run (positions and turns of
     the pieces it names)."""
     m = built.model
-    m.ClearHints()
+    m.clear_hints()
     for pv in built.pieces:
         p = where.get(pv.spec.id)
         if p is None:
             continue
-        m.AddHint(pv.x, p.x)
-        m.AddHint(pv.y, p.y)
+        m.add_hint(pv.x, p.x)
+        m.add_hint(pv.y, p.y)
         for (r, rot), lit in pv.alts.items():
-            m.AddHint(lit, int(r == p.room and rot == p.rotation))
+            m.add_hint(lit, int(r == p.room and rot == p.rotation))
 
 
 def differs(m: cp_model.CpModel, pv: PieceVars, where: Placement, move: int) -> list[cp_model.IntVar]:
@@ -1116,8 +1116,8 @@ def differs(m: cp_model.CpModel, pv: PieceVars, where: Placement, move: int) -> 
     other = [lit for lit in pv.alts.values() if all(lit is not s for s in same)]
     out += other
     for var, v in ((pv.x, where.x), (pv.y, where.y)):
-        a, b = m.NewBoolVar(""), m.NewBoolVar("")
-        m.Add(var >= v + move).OnlyEnforceIf(a)
-        m.Add(var <= v - move).OnlyEnforceIf(b)
+        a, b = m.new_bool_var(""), m.new_bool_var("")
+        m.add(var >= v + move).only_enforce_if(a)
+        m.add(var <= v - move).only_enforce_if(b)
         out += [a, b]
     return out

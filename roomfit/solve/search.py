@@ -273,7 +273,7 @@ class _Collect(cp_model.CpSolverSolutionCallback):
 
     def on_solution_callback(self) -> None:
         where = decode(self.built, self)
-        obj = self.ObjectiveValue() if self.built.has_objective else 0.0
+        obj = self.objective_value if self.built.has_objective else 0.0
         self.solutions.append((obj, where))
         if not self.passed and len(self.verdicts) < _AUDITS_PER_SOLVE:
             verdict = self.search._judge(where)
@@ -282,9 +282,9 @@ class _Collect(cp_model.CpSolverSolutionCallback):
             if verdict.passed:
                 self.search.valid_at(self.search.clock.elapsed())
                 if self.search.quick:
-                    self.StopSearch()  # other groups wait for this lane: improve later
+                    self.stop_search()  # other groups wait for this lane: improve later
             elif len(self.verdicts) >= _FAILS_BEFORE_CUT:
-                self.StopSearch()  # cut these layouts off and search again
+                self.stop_search()  # cut these layouts off and search again
 
 
 class _Search:
@@ -351,7 +351,7 @@ class _Search:
         before = len(self.found)
         hint(built, prov.placements)
         self._loop(before + 1, budget_end, budget_end, share_of=max(1, wanted - before))
-        built.model.ClearHints()
+        built.model.clear_hints()
         if len(self.found) > before and self.found[-1].objective <= prov.objective:
             return
         del self.found[before:]
@@ -382,7 +382,7 @@ class _Search:
             solver = cp_model.CpSolver()
             _params(solver, self.options, share, work)
             seen = _Collect(self, built)
-            status = solver.Solve(built.model, seen)
+            status = solver.solve(built.model, seen)
             self.counters.add("solves")
             if status == cp_model.INFEASIBLE:
                 if self.found:
@@ -393,7 +393,7 @@ class _Search:
             if status not in (cp_model.OPTIMAL, cp_model.FEASIBLE):
                 return "time"  # a restart would lose the search done so far
             optimal = status == cp_model.OPTIMAL
-            bound = solver.BestObjectiveBound() if built.has_objective else 0.0
+            bound = solver.best_objective_bound if built.has_objective else 0.0
             accepted = None
             # best first; the last (best) solution may be proven optimal
             for k, (obj, where) in enumerate(list(reversed(seen.solutions))[:_AUDITS_PER_SOLVE]):
@@ -430,7 +430,7 @@ class _Search:
                   f"one of {', '.join(pv.spec.id for pv in pvs)} must move")
         step = max(self.options.grid, built.route // 2)
         lits = [lit for pv in pvs for lit in differs(built.model, pv, where[pv.spec.id], step)]
-        built.model.AddBoolOr(lits)
+        built.model.add_bool_or(lits)
 
     def _forbid_near(self, built: Built, movable: list, where: dict[str, Placement]) -> None:
         """The next layout must move at least ``_DIFFER_PIECES`` pieces away from ``where``.
@@ -445,11 +445,11 @@ class _Search:
             classes.setdefault(_interchangeable(pv.spec), []).append(pv.spec.id)
         flags = []
         for pv in movable:
-            d = m.NewBoolVar("")
+            d = m.new_bool_var("")
             for other in classes[_interchangeable(pv.spec)]:
-                m.AddBoolOr([*differs(m, pv, where[other], _MOVE), d.Not()])
+                m.add_bool_or([*differs(m, pv, where[other], _MOVE), d.negated()])
             flags.append(d)
-        m.Add(sum(flags) >= need)
+        m.add(sum(flags) >= need)
 
 
 def _interchangeable(spec: PieceSpec) -> PieceSpec:
