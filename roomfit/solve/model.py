@@ -337,7 +337,8 @@ class Built:
 def _fixed_box(m: cp_model.CpModel, r: Rect, lit: cp_model.IntVar | None = None):
     x0, y0, x1, y1 = r
     if lit is None:
-        return (m.new_fixed_size_interval_var(x0, x1 - x0, ""), m.new_fixed_size_interval_var(y0, y1 - y0, ""))
+        return (m.new_fixed_size_interval_var(x0, x1 - x0, ""),
+                m.new_fixed_size_interval_var(y0, y1 - y0, ""))
     return (m.new_optional_fixed_size_interval_var(x0, x1 - x0, lit, ""),
             m.new_optional_fixed_size_interval_var(y0, y1 - y0, lit, ""))
 
