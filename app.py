@@ -27,7 +27,8 @@ from roomfit.audit.geometry import room_polygon
 from roomfit.cli import CAUTION
 from roomfit.errors import RoomfitError
 from roomfit.plan.data import Plan
-from roomfit.plan.planfile import dumps_plan, read_plan
+from roomfit.plan.read import read_plan
+from roomfit.plan.write import dumps_plan
 from roomfit.present import compare, draw, report
 from roomfit.rules.catalog import load_catalog, resolve_pieces
 from roomfit.rules.sets import RuleSet, load_ruleset, rules_for, ruleset_ids

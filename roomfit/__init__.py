@@ -20,7 +20,7 @@ __all__ = ["PlanError", "RoomfitError", "RuleError", "read_plan", "write_plan", 
 #: Where each entry point lives (module path under ``roomfit``).
 _HOME = {
     "PlanError": "errors", "RoomfitError": "errors", "RuleError": "errors",
-    "read_plan": "plan.planfile", "write_plan": "plan.planfile",
+    "read_plan": "plan.read", "write_plan": "plan.write",
     "load_ruleset": "rules.sets", "rules_for": "rules.sets",
     "draw_svg": "present.draw", "to_geojson": "present.export",
 }

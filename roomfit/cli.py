@@ -16,7 +16,7 @@ from collections.abc import Callable, Sequence
 
 from roomfit.errors import Problem, RoomfitError
 from roomfit.plan.data import Plan
-from roomfit.plan.planfile import read_plan
+from roomfit.plan.read import read_plan
 from roomfit.rules.catalog import load_catalog, type_record
 from roomfit.rules.sets import RuleSet, load_ruleset, rule_record, rules_for, ruleset_ids
 
@@ -209,7 +209,7 @@ def _cmd_solve(args: argparse.Namespace) -> int:
     from roomfit.audit.check import audit
     from roomfit.files import atomic_write, refuse_input_overwrite
     from roomfit.plan.data import RuleChoice
-    from roomfit.plan.planfile import write_plan
+    from roomfit.plan.write import write_plan
     from roomfit.solve.search import SolveOptions, solve
 
     plan, rules = _plan_and_rules(args)

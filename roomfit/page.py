@@ -6,7 +6,7 @@ resolving pieces against the catalogue and the rule set, auditing, solving, draw
 
 Edits to the furniture list and the rule choice return a *new* :class:`~roomfit.plan.data.Plan`
 and are validated by writing the plan to plan-file text and reading it back with
-:func:`~roomfit.plan.planfile.loads_plan`, so a bad value in the page gets exactly the message
+:func:`~roomfit.plan.read.loads_plan`, so a bad value in the page gets exactly the message
 (field path and what is wrong) that the same value in a plan file would get; the old plan is
 kept until an edit is valid.
 
@@ -28,8 +28,9 @@ from typing import Any, TypeVar
 
 from roomfit.errors import PlanError, Problem, RoomfitError, RuleError
 from roomfit.plan.data import Layout, Piece, Placement, Plan, RuleChoice
-from roomfit.plan.planfile import dumps_plan, loads_plan
+from roomfit.plan.read import loads_plan
 from roomfit.plan.units import format_length
+from roomfit.plan.write import dumps_plan
 from roomfit.rules.catalog import load_catalog, resolve_pieces
 from roomfit.rules.sets import RuleSet, load_ruleset
 

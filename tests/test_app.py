@@ -15,7 +15,8 @@ from streamlit.testing.v1 import AppTest
 from roomfit import page
 from roomfit.errors import PlanError, RuleError
 from roomfit.plan.data import Placement
-from roomfit.plan.planfile import dumps_plan, loads_plan, read_plan
+from roomfit.plan.read import loads_plan, read_plan
+from roomfit.plan.write import dumps_plan
 from roomfit.rules.sets import load_ruleset, rules_for
 
 ROOT = Path(__file__).resolve().parent.parent

@@ -17,7 +17,8 @@ from roomfit.bench.baseline import AnnealOptions, anneal, layout_cost
 from roomfit.bench.instances import SHAPES, InstanceSpec, floor_demand, generate, wheelchair_set
 from roomfit.bench.run import BenchConfig, markdown, run, summarize
 from roomfit.plan.data import Layout, Piece, Placement, Plan, Room, RuleChoice
-from roomfit.plan.planfile import dumps_plan, loads_plan
+from roomfit.plan.read import loads_plan
+from roomfit.plan.write import dumps_plan
 from roomfit.rules.sets import load_ruleset, rules_for
 
 SIZES = [(1, 4), (1, 10), (3, 25), (5, 33), (8, 60)]

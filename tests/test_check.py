@@ -31,7 +31,7 @@ from roomfit.plan.data import (
     RuleChoice,
     Window,
 )
-from roomfit.plan.planfile import read_plan
+from roomfit.plan.read import read_plan
 from roomfit.plan.units import inches
 from roomfit.rules.sets import load_ruleset, ruleset_ids
 
@@ -605,7 +605,7 @@ def test_rules_option_judges_by_the_named_set_as_published(tmp_path: Path,
     # A plan under the everyday set that overrides its route width to 500 mm: an 800 mm
     # passage passes its own rules, but `--rules ada-2010` judges by the standard as published
     # (2010 ADA §403.5.1: 36 in, 32 in for at most 24 in), where 800 mm fails.
-    from roomfit.plan.planfile import write_plan
+    from roomfit.plan.write import write_plan
 
     plan = _room_plan(_gap(800, 1000), overrides=(("route.width", 500), ("route.pinch_width", 500)))
     path = write_plan(plan, tmp_path / "p.toml")

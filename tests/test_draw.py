@@ -15,7 +15,7 @@ from roomfit.audit.marks import Mark
 from roomfit.audit.marks import Path as Route
 from roomfit.cli import main
 from roomfit.plan.data import Piece, Placement, Plan
-from roomfit.plan.planfile import read_plan
+from roomfit.plan.read import read_plan
 from roomfit.present.draw import SCALE_BAR_MM, STYLE, draw_svg
 from roomfit.rules.catalog import resolve_pieces
 from roomfit.rules.sets import rules_for

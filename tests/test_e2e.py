@@ -20,7 +20,7 @@ from pathlib import Path
 
 import pytest
 
-from roomfit.plan.planfile import read_plan
+from roomfit.plan.read import read_plan
 
 ROOT = Path(__file__).resolve().parent.parent
 CHROMIUM = Path("/usr/bin/chromium")

@@ -11,7 +11,7 @@ import pytest
 from shapely import LineString, Polygon
 
 from roomfit.cli import main
-from roomfit.plan.planfile import read_plan
+from roomfit.plan.read import read_plan
 from roomfit.present.export import to_geojson
 from roomfit.rules.catalog import resolve_pieces
 from roomfit.rules.sets import rules_for

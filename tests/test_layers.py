@@ -21,7 +21,8 @@ STAGE = {
     "plan": 1, "plan.units": 1, "plan.data": 1,
     "rules": 2, "rules.sets": 2, "rules.catalog": 2,
     # the reader validates piece types and rule-set names against the rules stage
-    "plan.planfile": 3, "audit": 3, "audit.geometry": 3, "audit.marks": 3,
+    "plan.fields": 3, "plan.openings": 3, "plan.read": 3, "plan.write": 3,
+    "audit": 3, "audit.geometry": 3, "audit.marks": 3,
     "audit.check": 4, "audit.routes": 4,
     "solve": 5, "solve.model": 5, "solve.explain": 5, "solve.search": 6,
     "present": 7, "present.draw": 7, "present.export": 7, "present.compare": 7,
@@ -31,8 +32,9 @@ STAGE = {
 }
 #: Pairs that must never import each other whatever their stage.
 FORBIDDEN = {
-    ("solve.search", "plan.planfile"), ("solve.model", "plan.planfile"),
-    ("solve.explain", "plan.planfile"), ("solve.model", "audit.check"),
+    *((s, f"plan.{m}") for s in ("solve.search", "solve.model", "solve.explain")
+      for m in ("fields", "openings", "read", "write")),
+    ("solve.model", "audit.check"),
     ("audit.check", "present.draw"), ("audit.routes", "present.draw"),
 }
 

@@ -20,8 +20,9 @@ from hypothesis import strategies as st
 
 from roomfit.errors import PlanError, RoomfitError
 from roomfit.plan.data import Leaf, Placement
-from roomfit.plan.planfile import dumps_plan, loads_plan, read_plan, write_plan
+from roomfit.plan.read import loads_plan, read_plan
 from roomfit.plan.units import parse_length
+from roomfit.plan.write import dumps_plan, write_plan
 
 
 def _base() -> dict[str, Any]:

@@ -12,7 +12,7 @@ from pathlib import Path
 import pytest
 
 from roomfit.cli import CAUTION, main
-from roomfit.plan.planfile import read_plan
+from roomfit.plan.read import read_plan
 from roomfit.present.compare import compare
 from roomfit.present.report import PDF_NOTE, build_report
 

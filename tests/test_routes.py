@@ -20,7 +20,7 @@ from roomfit.audit.routes import (
     score_routes,
 )
 from roomfit.plan.data import Door, Fixture, Leaf, Piece, Placement, Plan, Room, Trip
-from roomfit.plan.planfile import read_plan
+from roomfit.plan.read import read_plan
 from roomfit.rules.sets import load_ruleset, rules_for, ruleset_ids
 
 EVERYDAY = load_ruleset("everyday")

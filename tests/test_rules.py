@@ -17,7 +17,7 @@ from reference_rows import REFERENCE_FILE, RULE_STATUS, STATUS, cited_rows, orac
 
 from roomfit.cli import CAUTION, main
 from roomfit.errors import RuleError
-from roomfit.plan.planfile import loads_plan
+from roomfit.plan.read import loads_plan
 from roomfit.rules.catalog import load_catalog, zone_kinds
 from roomfit.rules.sets import (
     REQUIRED_RULES,

@@ -20,7 +20,7 @@ from shapely.geometry import LineString, Point, Polygon
 from roomfit.audit.check import audit
 from roomfit.audit.geometry import footprint, room_polygon, side_direction
 from roomfit.cli import main
-from roomfit.plan.planfile import loads_plan, read_plan
+from roomfit.plan.read import loads_plan, read_plan
 from roomfit.rules.catalog import load_catalog, resolve_pieces
 from roomfit.rules.sets import load_ruleset, rules_for
 from roomfit.solve.model import cover_rects, cross_thickness

@@ -19,7 +19,7 @@ from shapely.geometry import shape
 
 from roomfit.audit.check import audit
 from roomfit.cli import main
-from roomfit.plan.planfile import read_plan
+from roomfit.plan.read import read_plan
 from roomfit.rules.sets import rules_for
 
 UNSEEN = Path(__file__).resolve().parent / "plans_unseen"

@@ -31,7 +31,7 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from roomfit.plan.data import OUTSIDE, Door, Leaf, Piece, Plan, Room, RuleChoice, Trip, Window
-from roomfit.plan.planfile import read_plan
+from roomfit.plan.read import read_plan
 from roomfit.rules.catalog import load_catalog, resolve_pieces
 from roomfit.rules.sets import RuleSet, load_ruleset, ruleset_ids
 

@@ -1,5 +1,6 @@
 """Stage 1, the plan: units, the frozen data model (no I/O) and the plan file.
 
-Modules: ``units`` (lengths in and out), ``data`` (frozen dataclasses), ``planfile``
-(reading, validating and writing TOML plan files). Importing this package loads nothing.
+Modules: ``units`` (lengths in and out), ``data`` (frozen dataclasses); the plan file:
+``read`` (reading and validating TOML plan files, with ``fields`` for one value and
+``openings`` for doors and windows) and ``write``. Importing this package loads nothing.
 """

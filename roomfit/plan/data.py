@@ -21,6 +21,7 @@ from enum import StrEnum
 
 __all__ = [
     "FORMAT_VERSION",
+    "VERSION_KEY",
     "OUTSIDE",
     "Point",
     "Leaf",
@@ -40,6 +41,9 @@ __all__ = [
 
 #: Version of the plan-file format this code reads and writes.
 FORMAT_VERSION = 1
+
+#: The top-level key of a plan file that holds :data:`FORMAT_VERSION`.
+VERSION_KEY = "roomfit_plan"
 
 #: Pseudo room id for the far side of an entrance door.
 OUTSIDE = "outside"

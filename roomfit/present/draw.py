@@ -42,7 +42,7 @@ from roomfit.audit.geometry import (
 )
 from roomfit.audit.marks import Mark, Path
 from roomfit.plan.data import Leaf, Plan
-from roomfit.plan.planfile import MAX_WALL_THICKNESS
+from roomfit.plan.openings import MAX_WALL_THICKNESS
 from roomfit.rules.catalog import resolve_pieces
 from roomfit.rules.sets import RuleSet
 

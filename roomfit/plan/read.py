@@ -1,0 +1,334 @@
+"""Reading and validating plan files (TOML).
+
+A plan file is TOML with ``roomfit_plan = 1`` (the format version) at the top; see
+``docs/plan-format.md`` for every key. Lengths are numbers in the file's ``units`` (mm by
+default; cm, m, in, ft) or strings with a unit (``"36 in"``). Reading collects *every*
+problem before raising one :class:`PlanError` whose problems each name the field path
+(``rooms[2].outline``) and say what is wrong, with numbers. Unknown keys are rejected.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+import tomllib
+from functools import cache
+from pathlib import Path
+from typing import Any
+
+from shapely import Polygon
+
+from roomfit.errors import PlanError, Problem, RoomfitError
+from roomfit.plan.data import (
+    FORMAT_VERSION,
+    OUTSIDE,
+    ROTATIONS,
+    VERSION_KEY,
+    Fixture,
+    Piece,
+    Placement,
+    Plan,
+    Room,
+    RuleChoice,
+    Trip,
+)
+from roomfit.plan.fields import FieldReader, array_items, kind_of, known_ids
+from roomfit.plan.openings import openings_apart, read_doors, read_windows
+from roomfit.plan.units import UNITS
+from roomfit.rules.catalog import load_catalog
+from roomfit.rules.sets import load_ruleset
+
+__all__ = ["read_plan", "loads_plan", "plan_places"]
+
+_TOP_KEYS = {VERSION_KEY, "name", "client", "address", "notes", "units", "rules", "rooms",
+             "doors", "windows", "fixtures", "furniture", "routines"}
+_ROOM_KEYS = {"id", "label", "use", "outline"}
+_FIXTURE_KEYS = {"id", "room", "kind", "label", "outline", "height", "zone"}
+_PIECE_KEYS = {"id", "type", "room", "rooms", "label", "width", "depth", "height", "placement",
+               "locked", "access"}
+_PLACEMENT_KEYS = {"x", "y", "rotation", "room"}
+_RULE_KEYS = {"set", "overrides"}
+_TRIP_KEYS = {"from", "to", "per_day", "label", "night"}
+_RESERVED = {OUTSIDE, "entrance"}
+
+def _read_rooms(r: FieldReader, data: dict) -> list[Room]:
+    rooms = []
+    for f, raw in array_items(r, data, "rooms"):
+        t = r.table(raw, f, _ROOM_KEYS, {"id", "use", "outline"})
+        if t is None:
+            continue
+        rid, use = r.ident(t, "id", f), r.text(t, "use", f)
+        outline = r.outline(t, "outline", f)
+        label = r.text(t, "label", f, default=rid or "")
+        if rid and use and outline and label is not None:
+            rooms.append(Room(rid, label, use, outline))
+    if not rooms and not r.problems:
+        r.add("rooms", "a plan needs at least one room", "add a [[rooms]] table")
+    polys = [(i, rm, Polygon(rm.outline)) for i, rm in enumerate(rooms)]
+    for a in range(len(polys)):
+        for b in range(a + 1, len(polys)):
+            ov = polys[a][2].intersection(polys[b][2])
+            if ov.area > 1.0:
+                c = ov.representative_point()
+                r.add(f"rooms[{polys[b][0]}].outline",
+                      f"room {polys[b][1].id!r} overlaps room {polys[a][1].id!r} by "
+                      f"{ov.area / 1e6:.3f} m2 around ({c.x:.0f}, {c.y:.0f})")
+    return rooms
+
+
+def _read_fixtures(r: FieldReader, data: dict, rooms: dict[str, Room]) -> list[Fixture]:
+    out = []
+    for f, raw in array_items(r, data, "fixtures"):
+        t = r.table(raw, f, _FIXTURE_KEYS, {"id", "room", "kind", "outline", "height"})
+        if t is None:
+            continue
+        fid, room, kind = r.ident(t, "id", f), r.text(t, "room", f), r.text(t, "kind", f)
+        label = r.text(t, "label", f, default=kind or "")
+        outline = r.outline(t, "outline", f)
+        zone = r.outline(t, "zone", f)
+        height = r.length(t, "height", f)
+        if room is not None and room not in rooms:
+            r.add(f"{f}.room", f"unknown room {room!r}", known_ids(rooms))
+            continue
+        if None in (fid, room, kind, label, outline, height) or ("zone" in t and zone is None):
+            continue
+        rp = Polygon(rooms[room].outline)  # type: ignore[index]
+        outside = Polygon(outline).difference(rp).area  # type: ignore[arg-type]
+        if outside > 1.0:
+            r.add(f"{f}.outline", f"{outside / 1e6:.3f} m2 of the fitting lies outside room {room!r}")
+            continue
+        if zone is not None:
+            beyond = Polygon(zone).difference(rp).area
+            if beyond > 1.0:
+                r.add(f"{f}.zone", f"{beyond / 1e6:.3f} m2 of the fitting's zone lies outside room "
+                      f"{room!r}", "the zone is floor in front of the fitting, inside its room")
+                continue
+        out.append(Fixture(fid, room, kind, label, outline, height, zone))  # type: ignore[arg-type]
+    return out
+
+
+@cache
+def _catalog_ids() -> frozenset[str]:
+    """Ids of the bundled furniture types (the data file does not change while we run)."""
+    return frozenset(load_catalog())
+
+
+def _read_furniture(r: FieldReader, data: dict, rooms: dict[str, Room]) -> list[Piece]:
+    catalog = _catalog_ids()
+    out = []
+    for f, raw in array_items(r, data, "furniture"):
+        t = r.table(raw, f, _PIECE_KEYS, {"id", "type"})
+        if t is None:
+            continue
+        pid, ptype = r.ident(t, "id", f), r.text(t, "type", f)
+        label = r.text(t, "label", f, default="")
+        if ptype is not None and ptype != "custom" and ptype not in catalog:
+            r.add(f"{f}.type", f"unknown furniture type {ptype!r}",
+                  'run `roomfit catalog` to list the types, or use type = "custom"')
+            ptype = None
+        sizes = {k: r.length(t, k, f, low=1 if k != "height" else 0) for k in ("width", "depth", "height")}
+        if ptype == "custom":
+            for k in sizes:
+                if k not in t:
+                    r.add(f"{f}.{k}", "missing key", "a custom piece needs width, depth and height")
+        if "room" in t and "rooms" in t:
+            r.add(f"{f}.rooms", "give either room or rooms, not both")
+            continue
+        allowed: list[str] = []
+        if "room" in t:
+            v = r.text(t, "room", f)
+            allowed = [v] if v is not None else []
+        elif "rooms" in t:
+            v = t["rooms"]
+            if not isinstance(v, list) or not v or not all(isinstance(x, str) for x in v):
+                r.add(f"{f}.rooms", "expected a non-empty list of room ids")
+            else:
+                allowed = list(v)
+        else:
+            r.add(f"{f}.room", "missing key", "name the room it stands in (room = ...) or the "
+                  "rooms it may stand in (rooms = [...])")
+        for j, rid in enumerate(allowed):
+            if rid not in rooms:
+                key = f"{f}.room" if "room" in t else f"{f}.rooms[{j}]"
+                r.add(key, f"unknown room {rid!r}", known_ids(rooms))
+        access = r.text(t, "access", f)
+        if access is not None and access not in ("both", "left", "right"):
+            r.add(f"{f}.access", f"unknown access {access!r}", "use both, left or right")
+        elif access is not None and ptype is not None and (
+                ptype == "custom" or load_catalog()[ptype].category != "bed"):
+            r.add(f"{f}.access", f"access applies to beds only, not to a {ptype!r} piece",
+                  "leave access out")
+        locked = t.get("locked", False)
+        if not isinstance(locked, bool):
+            r.add(f"{f}.locked", f"expected true or false, found {kind_of(locked)}")
+            locked = False
+        placement = None
+        if "placement" in t:
+            placement = _read_placement(r, t["placement"], f"{f}.placement", allowed, rooms)
+        elif locked:
+            r.add(f"{f}.locked", "a locked piece needs a placement", "add placement = {x, y, rotation, room}")
+        if pid is None or ptype is None or label is None or not allowed:
+            continue
+        if any(rid not in rooms for rid in allowed):
+            continue
+        out.append(Piece(pid, ptype, tuple(allowed), label, sizes["width"], sizes["depth"],
+                         sizes["height"], placement, bool(locked), access))
+    return out
+
+
+def _read_placement(r: FieldReader, raw: Any, f: str, allowed: list[str],
+                    rooms: dict[str, Room]) -> Placement | None:
+    t = r.table(raw, f, _PLACEMENT_KEYS, {"x", "y", "rotation"})
+    if t is None:
+        return None
+    x, y = r.length(t, "x", f, low=None), r.length(t, "y", f, low=None)
+    rot = t.get("rotation")
+    if "rotation" in t and (isinstance(rot, bool) or rot not in ROTATIONS):
+        r.add(f"{f}.rotation", f"expected one of {', '.join(map(str, ROTATIONS))} degrees, "
+              f"found {rot!r}")
+        return None
+    room = r.text(t, "room", f, default=allowed[0] if len(allowed) == 1 else None)
+    if room is None:
+        r.add(f"{f}.room", "missing key", "the piece may stand in several rooms: say which one")
+        return None
+    if allowed and room not in allowed:
+        r.add(f"{f}.room", f"room {room!r} is not among the piece's rooms ({', '.join(allowed)})")
+        return None
+    if x is None or y is None or rot is None:
+        return None
+    return Placement(x, y, int(rot), room)
+
+
+def _read_rules(r: FieldReader, data: dict) -> RuleChoice:
+    raw = data.get("rules", {"set": "everyday"})
+    t = r.table(raw, "rules", _RULE_KEYS, {"set"})
+    if t is None:
+        return RuleChoice()
+    name = r.text(t, "set", "rules") or "everyday"
+    over_raw = t.get("overrides", {})
+    overrides: dict[str, int | str] = {}
+    if not isinstance(over_raw, dict):
+        r.add("rules.overrides", f"expected a table of rule id = value, found {kind_of(over_raw)}")
+    else:
+        for k, v in over_raw.items():
+            if k == "turning.shape":
+                overrides[k] = v
+            else:
+                mm = r.length(over_raw, k, "rules.overrides", low=0)
+                if mm is not None:
+                    overrides[k] = mm
+    try:
+        load_ruleset(name, overrides)
+    except RoomfitError as e:
+        r.problems.extend(e.problems)
+    return RuleChoice(name, tuple(overrides.items()))
+
+
+def plan_places(plan: Plan) -> set[str]:
+    """Names a routine trip may start or end at."""
+    return ({"entrance"} | {r.id for r in plan.rooms} | {d.id for d in plan.doors}
+            | {f.id for f in plan.fixtures} | {p.id for p in plan.furniture})
+
+
+def _read_routines(r: FieldReader, data: dict) -> list[Trip]:
+    out = []
+    for f, raw in array_items(r, data, "routines"):
+        t = r.table(raw, f, _TRIP_KEYS, {"from", "to", "per_day"})
+        if t is None:
+            continue
+        a, b = r.text(t, "from", f), r.text(t, "to", f)
+        label = r.text(t, "label", f, default="")
+        per = t.get("per_day")
+        if "per_day" in t and (isinstance(per, bool) or not isinstance(per, int | float)
+                               or not per > 0 or per == math.inf):
+            r.add(f"{f}.per_day", f"expected a number of trips greater than 0, found {per!r}")
+            per = None
+        night = t.get("night", False)
+        if not isinstance(night, bool):
+            r.add(f"{f}.night", f"expected true or false, found {kind_of(night)}")
+            night = False
+        if None in (a, b, per, label):
+            continue
+        out.append(Trip(a, b, float(per), label, night))  # type: ignore[arg-type]
+    return out
+
+
+def loads_plan(text: str, source: str = "<plan>") -> Plan:
+    """Parse and validate plan-file text; raise :class:`PlanError` listing every problem."""
+    try:
+        data = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as e:
+        m = re.search(r"\(at line (\d+), column (\d+)\)", str(e))
+        line, col = (int(m.group(1)), int(m.group(2))) if m else (None, None)
+        msg = re.sub(r"\s*\(at line \d+, column \d+\)", "", str(e)) or "invalid TOML"
+        raise PlanError(Problem("", f"not a valid TOML file: {msg}", line=line, column=col),
+                        source) from None
+    version = data.get(VERSION_KEY)
+    if version != FORMAT_VERSION:
+        found = "missing" if version is None else f"found {version!r}"
+        raise PlanError(Problem(VERSION_KEY, f"expected format version {FORMAT_VERSION}, {found}",
+                                f"start the file with {VERSION_KEY} = {FORMAT_VERSION}"), source)
+    unit = data.get("units", "mm")
+    r = FieldReader("mm")
+    if unit not in UNITS:
+        r.add("units", f"unknown unit {unit!r}", f"use one of {', '.join(UNITS)}")
+        unit = "mm"
+    r.unit = unit
+    for k in sorted(set(data) - _TOP_KEYS):
+        r.add(k, "unknown key", f"allowed keys: {', '.join(sorted(_TOP_KEYS))}")
+    name = r.text(data, "name", "", default="") or ""
+    meta = {k: r.text(data, k, "", default="") or "" for k in ("client", "address", "notes")}
+    rooms = _read_rooms(r, data)
+    by_id = {rm.id: rm for rm in rooms}
+    doors = read_doors(r, data, by_id)
+    windows = read_windows(r, data, by_id)
+    openings_apart(r, data, by_id, doors, windows)
+    fixtures = _read_fixtures(r, data, by_id)
+    furniture = _read_furniture(r, data, by_id)
+    rules = _read_rules(r, data)
+    routines = _read_routines(r, data)
+    plan = Plan(name, tuple(rooms), tuple(doors), tuple(windows), tuple(fixtures),
+                tuple(furniture), rules, tuple(routines), unit, **meta)
+    _check_ids(r, plan)
+    for i, trip in enumerate(plan.routines):
+        for key, place in (("from", trip.origin), ("to", trip.target)):
+            if place not in plan_places(plan):
+                r.add(f"routines[{i}].{key}", f"unknown place {place!r}",
+                      "use 'entrance' or the id of a room, door, fitting or piece")
+    if r.problems:
+        raise PlanError(r.problems, source)
+    return plan
+
+
+def _check_ids(r: FieldReader, plan: Plan) -> None:
+    seen: dict[str, str] = {}
+    groups = (("rooms", plan.rooms), ("doors", plan.doors), ("windows", plan.windows),
+              ("fixtures", plan.fixtures), ("furniture", plan.furniture))
+    for key, items in groups:
+        for i, item in enumerate(items):
+            f = f"{key}[{i}].id"
+            if item.id in _RESERVED:
+                r.add(f, f"{item.id!r} is a reserved name", "choose another id")
+            elif item.id in seen:
+                r.add(f, f"duplicate id {item.id!r}, already used by {seen[item.id]}",
+                      "ids must be unique across the whole plan")
+            else:
+                seen[item.id] = f
+
+
+def read_plan(path: str | Path) -> Plan:
+    """Read and validate a plan file; every problem names ``path`` and the field."""
+    p = Path(path)
+    try:
+        text = p.read_text(encoding="utf-8")
+    except FileNotFoundError:
+        raise PlanError(Problem("", "no such file"), str(p)) from None
+    except IsADirectoryError:
+        raise PlanError(Problem("", "is a folder, not a plan file"), str(p)) from None
+    except UnicodeDecodeError as e:
+        raise PlanError(Problem("", f"not UTF-8 text (byte {e.start})"), str(p)) from None
+    except OSError as e:
+        raise PlanError(Problem("", f"cannot read: {e.strerror}"), str(p)) from None
+    return loads_plan(text, str(p))
+
+

@@ -1,0 +1,120 @@
+"""Writing plan files (TOML), in the plan's own unit and atomically.
+
+read -> write -> read gives an equal :class:`~roomfit.plan.data.Plan`: each length is written
+as the shortest number in the plan's unit that reads back as the same millimetre.
+"""
+
+from __future__ import annotations
+
+from fractions import Fraction
+from pathlib import Path
+from typing import Any
+
+import tomli_w
+
+from roomfit.files import atomic_write
+from roomfit.plan.data import FORMAT_VERSION, VERSION_KEY, Piece, Plan
+from roomfit.plan.units import MM_PER, parse_length
+
+__all__ = ["dumps_plan", "write_plan"]
+
+
+def _out(mm: int, unit: str) -> int | float:
+    """``mm`` in ``unit``: a whole number when exact, else the shortest decimal that reads
+    back as the same millimetre (``5486`` mm is ``215.98`` in, not ``215.98425196850394``)."""
+    if unit == "mm":
+        return mm
+    v = Fraction(mm) / MM_PER[unit]
+    if v.denominator == 1:
+        return int(v)
+    for digits in range(1, 7):
+        short = round(float(v), digits)
+        if parse_length(short, unit) == mm:
+            return short
+    return float(v)
+
+
+def _plan_to_dict(plan: Plan) -> dict[str, Any]:
+    u = plan.unit
+
+    def pt(p: tuple[int, int]) -> list[int | float]:
+        return [_out(p[0], u), _out(p[1], u)]
+
+    d: dict[str, Any] = {VERSION_KEY: FORMAT_VERSION, "name": plan.name}
+    for k in ("client", "address", "notes"):
+        if getattr(plan, k):
+            d[k] = getattr(plan, k)
+    d["units"] = u
+    rules: dict[str, Any] = {"set": plan.rules.set}
+    if plan.rules.overrides:
+        rules["overrides"] = {k: (v if isinstance(v, str) else _out(v, u))
+                              for k, v in plan.rules.overrides}
+    d["rules"] = rules
+    d["rooms"] = [{"id": r.id, "label": r.label, "use": r.use,
+                   "outline": [pt(p) for p in r.outline]} for r in plan.rooms]
+    if plan.doors:
+        d["doors"] = []
+        for door in plan.doors:
+            dd: dict[str, Any] = {"id": door.id, "rooms": list(door.rooms), "at": pt(door.at),
+                                  "width": _out(door.width, u), "leaf": door.leaf.value}
+            if door.swings_into is not None:
+                dd["swings_into"] = door.swings_into
+            if door.hinge is not None:
+                dd["hinge"] = door.hinge
+            d["doors"].append(dd)
+    if plan.windows:
+        d["windows"] = [{"id": w.id, "room": w.room, "at": pt(w.at), "width": _out(w.width, u),
+                         "sill": _out(w.sill, u)} for w in plan.windows]
+    if plan.fixtures:
+        d["fixtures"] = []
+        for fx in plan.fixtures:
+            fd: dict[str, Any] = {"id": fx.id, "room": fx.room, "kind": fx.kind,
+                                  "label": fx.label, "outline": [pt(p) for p in fx.outline],
+                                  "height": _out(fx.height, u)}
+            if fx.zone:
+                fd["zone"] = [pt(p) for p in fx.zone]
+            d["fixtures"].append(fd)
+    if plan.furniture:
+        d["furniture"] = [_piece_to_dict(p, u) for p in plan.furniture]
+    if plan.routines:
+        d["routines"] = []
+        for t in plan.routines:
+            td: dict[str, Any] = {"from": t.origin, "to": t.target, "per_day": t.per_day}
+            if t.label:
+                td["label"] = t.label
+            if t.night:
+                td["night"] = True
+            d["routines"].append(td)
+    return d
+
+
+def _piece_to_dict(p: Piece, u: str) -> dict[str, Any]:
+    d: dict[str, Any] = {"id": p.id, "type": p.type}
+    if p.label:
+        d["label"] = p.label
+    if len(p.rooms) == 1:
+        d["room"] = p.rooms[0]
+    else:
+        d["rooms"] = list(p.rooms)
+    for k in ("width", "depth", "height"):
+        if getattr(p, k) is not None:
+            d[k] = _out(getattr(p, k), u)
+    if p.access is not None:
+        d["access"] = p.access
+    if p.placement is not None:
+        pl = p.placement
+        d["placement"] = {"x": _out(pl.x, u), "y": _out(pl.y, u), "rotation": pl.rotation,
+                          "room": pl.room}
+    if p.locked:
+        d["locked"] = True
+    return d
+
+
+def dumps_plan(plan: Plan) -> str:
+    """The plan as plan-file text, in the plan's own unit."""
+    return tomli_w.dumps(_plan_to_dict(plan))
+
+
+def write_plan(plan: Plan, path: str | Path) -> Path:
+    """Write ``plan`` to ``path`` atomically."""
+    return atomic_write(path, dumps_plan(plan))
