@@ -24,6 +24,7 @@ import streamlit as st
 
 from roomfit import page
 from roomfit.audit.geometry import room_polygon
+from roomfit.audit.quality import quality_record
 from roomfit.cli import CAUTION
 from roomfit.errors import RoomfitError
 from roomfit.plan.data import Plan
@@ -487,10 +488,14 @@ def _candidate(i: int, cand: Any, a: dict[str, Any]) -> None:
     m2.metric("Walking a day", row.text("walking"))
     m1.metric("Narrowest route", row.text("narrowest"))
     m2.metric("Turning spaces", row.text("turning"))
-    st.caption(f"Free floor {row.text('free_floor')} · preferences met {row.text('preferences')}"
+    st.caption(f"Free floor {row.text('free_floor')} · group rules met {row.text('groups')}"
+               f" · preferences met {row.text('preferences')}"
                f" · solver score {cand.objective:g}" + (" (best possible)" if cand.optimal else ""))
     with st.expander("Rule findings"):
         st.dataframe(page.findings_rows(row.audit.findings), hide_index=True)
+    with st.expander("Layout quality (advisory)"):
+        st.dataframe([{k: q[k] for k in ("text", "kind", "source")}
+                      for q in quality_record(row.quality)], hide_index=True)
     with st.expander("Daily routes"):
         st.dataframe(page.route_rows(row.routes), hide_index=True)
     st.button("Keep this arrangement", key=f"keep_{i}", on_click=_keep, args=(i,))

@@ -178,6 +178,7 @@ def _cmd_export(args: argparse.Namespace) -> int:
 
 def _cmd_check(args: argparse.Namespace) -> int:
     from roomfit.audit.check import audit, audit_record, marks_for, summary_text
+    from roomfit.audit.quality import quality, quality_lines, quality_record
     from roomfit.files import atomic_write, refuse_input_overwrite
 
     if args.draw:
@@ -185,17 +186,22 @@ def _cmd_check(args: argparse.Namespace) -> int:
     plan = read_plan(args.plan)
     rules = _chosen_rules(plan, args.rules)
     result = audit(plan, rules)
+    groups = quality(plan, rules)
     if args.draw:
         from roomfit.present.draw import draw_svg
 
         atomic_write(args.draw, draw_svg(plan, rules, marks=marks_for(result)))
     if args.json:
         record = {"plan": plan.name, "rules": rules.id, **audit_record(result),
-                  "caution": CAUTION}
+                  "quality": quality_record(groups), "caution": CAUTION}
         print(json.dumps(record, indent=2, ensure_ascii=False))
     else:
         print(f"{args.plan}: audit of {_titled(plan)}")
         print(summary_text(result, rules))
+        if groups:
+            print("layout quality (advisory, not safety rules; the verdict above does not "
+                  "count them):")
+            print("\n".join(quality_lines(groups)))
         if args.draw:
             print(f"drawing with {len(result.failures)} failures marked: {args.draw}")
         print(CAUTION)

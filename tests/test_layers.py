@@ -19,10 +19,10 @@ PKG = ROOT / "roomfit"
 STAGE = {
     "__init__": 0, "__main__": 11, "errors": 0, "files": 0,
     "plan": 1, "plan.units": 1, "plan.data": 1,
-    "rules": 2, "rules.sets": 2, "rules.catalog": 2,
+    "rules": 2, "rules.sets": 2, "rules.catalog": 2, "rules.groups": 2,
     # the reader validates piece types and rule-set names against the rules stage
     "plan.fields": 3, "plan.openings": 3, "plan.read": 3, "plan.write": 3,
-    "audit": 3, "audit.geometry": 3, "audit.marks": 3,
+    "audit": 3, "audit.geometry": 3, "audit.marks": 3, "audit.quality": 3,
     "audit.check": 4, "audit.routes": 4,
     "solve": 5, "solve.model": 5, "solve.explain": 5, "solve.search": 6,
     "present": 7, "present.draw": 7, "present.export": 7, "present.compare": 7,

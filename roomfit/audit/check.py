@@ -47,14 +47,15 @@ import numpy as np
 import shapely
 from shapely import MultiPoint, Point, Polygon
 from shapely.affinity import translate
-from shapely.geometry import LineString
 from shapely.geometry.base import BaseGeometry
 from shapely.ops import nearest_points, unary_union
 
 from roomfit.audit import geometry as geo
 from roomfit.audit.marks import Mark
+from roomfit.audit.quality import back_edge, wall_share
 from roomfit.plan.data import OUTSIDE, Placement, Plan
 from roomfit.rules.catalog import PieceSpec, resolve_pieces
+from roomfit.rules.groups import param
 from roomfit.rules.sets import Rule, RuleSet
 
 __all__ = [
@@ -85,14 +86,10 @@ RULE_IDS = ("piece.room", "piece.inside", "piece.overlap", "wall.against", "zone
 TOUCH_MM = 1.0
 #: Overlap area (mm2) below which two shapes only touch.
 TOUCH_MM2 = 1.0
-#: Share of a piece's back edge that must lie on the room boundary (``wall.against``);
-#: common practice: the solver places such pieces flush, a small shortfall allows a piece
-#: that runs past a corner or a door jamb.
-WALL_SHARE = 0.8
-#: Gap (mm) up to which a piece's back still counts as against the wall (``wall.against``);
-#: common practice: a skirting board, or a placement given in inches against a wall whose
-#: position was rounded to the millimetre, leaves a few mm.
-WALL_GAP_MM = 10.0
+#: Share of a piece's back edge that must lie on the room boundary (``wall.against``): the
+#: ``wall.share`` value of ``data/groups.toml`` (its gap ``wall.gap``), measured by
+#: :func:`roomfit.audit.quality.wall_share`, the one "against a wall" measure.
+WALL_SHARE = param("wall.share").value
 #: Precision (mm) of the widest-route search.
 WIDTH_STEP = 5.0
 #: A passage this much narrower (mm) than asked still counts as wide enough, so that a hall
@@ -300,27 +297,14 @@ def _check_overlap(ctx: _Ctx) -> list[Finding]:
     return out
 
 
-def _back_edge(shape: Polygon, rotation: int) -> LineString:
-    x0, y0, x1, y1 = shape.bounds
-    dx, dy = geo.side_direction("back", rotation)
-    if dx == 1:
-        return LineString([(x1, y0), (x1, y1)])
-    if dx == -1:
-        return LineString([(x0, y0), (x0, y1)])
-    if dy == 1:
-        return LineString([(x0, y1), (x1, y1)])
-    return LineString([(x0, y0), (x1, y0)])
-
-
 def _check_walls(ctx: _Ctx) -> list[Finding]:
     out: list[Finding] = []
     for pid, pc in ctx.placed.items():
         if not pc.spec.against_wall or pc.placement.room not in ctx.rooms:
             continue
-        edge = _back_edge(pc.shape, pc.placement.rotation)
-        wall = ctx.rooms[pc.placement.room].boundary.buffer(WALL_GAP_MM, cap_style="flat")
-        on = edge.intersection(wall).length
-        share = on / edge.length
+        edge = back_edge(pc.shape.bounds, pc.placement.rotation)
+        share = wall_share(edge, ctx.rooms[pc.placement.room].boundary)
+        on = share * edge.length
         ok = share >= WALL_SHARE - 1e-9
         msg = (f"{pid} has {share:.0%} of its back against a wall"
                + ("" if ok else f" (needs {WALL_SHARE:.0%})"))

@@ -9,9 +9,9 @@ Metrics (see ``docs/routes.md``):
   as narrower than any width);
 - turning spaces: rooms that have one out of the rooms the rule set asks one for;
 - free floor: the share of the rooms' floor not under fittings or furniture;
-- preferences met: pieces of wall-loving categories standing with their back to a wall, and
-  beds whose head is not under a window (common practice; the solver's weights in
-  ``data/preferences.toml`` name the same wishes).
+- group rules met and preferences met: the checks of the layout-quality audit
+  (:func:`roomfit.audit.quality.quality`) that pass, of those measured; each check, with its
+  measured value and target, is listed under the table (:func:`quality_notes`).
 
 A metric is marked best on the rows that reach its best value, unless every row ties (then
 the mark would say nothing) or there is only one row.
@@ -19,16 +19,16 @@ the mark would say nothing) or there is only one row.
 
 from __future__ import annotations
 
-import tomllib
 from collections.abc import Sequence
 from dataclasses import dataclass
-from importlib import resources
+from enum import StrEnum
 
-from shapely import LineString, Polygon
+from shapely import Polygon
 from shapely.ops import unary_union
 
 from roomfit.audit.check import Audit, audit
-from roomfit.audit.geometry import fixture_polygon, footprint, lies_flat, side_direction, window_segment
+from roomfit.audit.geometry import fixture_polygon, footprint, lies_flat
+from roomfit.audit.quality import GroupCheck, Kind, quality, quality_lines
 from roomfit.audit.routes import RouteScores, score_routes
 from roomfit.plan.data import Plan
 from roomfit.rules.catalog import resolve_pieces
@@ -36,40 +36,40 @@ from roomfit.rules.sets import RuleSet, rules_for
 
 __all__ = [
     "METRICS",
-    "WALL_CATEGORIES",
+    "Better",
     "Metric",
     "Row",
     "Comparison",
     "compare",
     "compare_row",
     "render_table",
+    "quality_notes",
 ]
 
-#: Categories that usually stand with their back to a wall (common practice), used when the
-#: solver's preference file is not there.
-WALL_CATEGORIES = ("sofa", "bookcase", "chest", "tv", "shoe_cabinet", "desk", "armchair",
-                   "wardrobe", "bed")
+class Better(StrEnum):
+    """Which way a metric improves."""
 
-#: A back edge this close (mm) to a wall counts as against it.
-_WALL_GAP = 10
+    LOWER = "lower"
+    HIGHER = "higher"
 
 
 @dataclass(frozen=True)
 class Metric:
-    """A column of the comparison: ``better`` is ``"lower"`` or ``"higher"``."""
+    """A column of the comparison and the way it improves."""
 
     id: str
     label: str
-    better: str
+    better: Better
 
 
 METRICS = (
-    Metric("rules_failed", "Rules failed", "lower"),
-    Metric("walking", "Walking per day", "lower"),
-    Metric("narrowest", "Narrowest on a routine route", "higher"),
-    Metric("turning", "Turning spaces (have / need)", "higher"),
-    Metric("free_floor", "Free floor", "higher"),
-    Metric("preferences", "Preferences met", "higher"),
+    Metric("rules_failed", "Rules failed", Better.LOWER),
+    Metric("walking", "Walking per day", Better.LOWER),
+    Metric("narrowest", "Narrowest on a routine route", Better.HIGHER),
+    Metric("turning", "Turning spaces (have / need)", Better.HIGHER),
+    Metric("free_floor", "Free floor", Better.HIGHER),
+    Metric("groups", "Group rules met", Better.HIGHER),
+    Metric("preferences", "Preferences met", Better.HIGHER),
 )
 
 
@@ -89,8 +89,11 @@ class Row:
     turning_have: int
     turning_need: int
     free_floor_share: float
-    preferences_met: int
-    preferences_total: int
+    quality: tuple[GroupCheck, ...]
+
+    def _met(self, kind: Kind) -> tuple[int, int]:
+        mine = [c for c in self.quality if c.kind == kind]
+        return sum(c.ok for c in mine), len(mine)
 
     def value(self, metric: str) -> tuple[float, ...] | None:
         """The metric as a sortable key at the precision shown (None when it does not apply):
@@ -109,9 +112,9 @@ class Row:
             return None if not self.turning_need else (self.turning_have / self.turning_need,)
         if metric == "free_floor":
             return (round(100 * self.free_floor_share),)
-        if metric == "preferences":
-            return None if not self.preferences_total else (
-                self.preferences_met / self.preferences_total,)
+        if metric in ("groups", "preferences"):
+            met, asked = self._met(Kind.GROUP if metric == "groups" else Kind.PREFERENCE)
+            return None if not asked else (met / asked,)
         raise KeyError(metric)
 
     def text(self, metric: str) -> str:
@@ -132,9 +135,9 @@ class Row:
             return "not asked" if not self.turning_need else f"{self.turning_have} / {self.turning_need}"
         if metric == "free_floor":
             return f"{100 * self.free_floor_share:.0f} %"
-        if metric == "preferences":
-            return "-" if not self.preferences_total else (
-                f"{self.preferences_met} / {self.preferences_total}")
+        if metric in ("groups", "preferences"):
+            met, asked = self._met(Kind.GROUP if metric == "groups" else Kind.PREFERENCE)
+            return "-" if not asked else f"{met} / {asked} (listed below)"
         raise KeyError(metric)
 
 
@@ -147,48 +150,6 @@ class Comparison:
 
     def is_best(self, metric: str, index: int) -> bool:
         return index in dict(self.best).get(metric, ())
-
-
-def _wall_categories() -> tuple[str, ...]:
-    """Wall-loving categories from the solver's preference file, else :data:`WALL_CATEGORIES`."""
-    path = resources.files("roomfit") / "data" / "preferences.toml"
-    try:
-        cats = tomllib.loads(path.read_text(encoding="utf-8"))["wall"]["categories"]
-    except (OSError, KeyError, tomllib.TOMLDecodeError):
-        return WALL_CATEGORIES
-    return tuple(cats) + tuple(c for c in ("wardrobe", "bed") if c not in cats)
-
-
-def _back_edge(box: tuple[float, float, float, float], rotation: int) -> LineString:
-    x0, y0, x1, y1 = box
-    dx, dy = side_direction("back", rotation)
-    if dy == -1:
-        return LineString([(x0, y0), (x1, y0)])
-    if dy == 1:
-        return LineString([(x0, y1), (x1, y1)])
-    if dx == -1:
-        return LineString([(x0, y0), (x0, y1)])
-    return LineString([(x1, y0), (x1, y1)])
-
-
-def _preferences(plan: Plan, rules: RuleSet) -> tuple[int, int]:
-    """(met, asked): wall-loving pieces with their back to a wall; beds not under a window."""
-    specs = {s.id: s for s in resolve_pieces(plan, rules)}
-    cats = _wall_categories()
-    walls = unary_union([Polygon(r.outline).exterior for r in plan.rooms])
-    windows = [window_segment(plan, w) for w in plan.windows]
-    met = asked = 0
-    for pid, pl in plan.layout:
-        spec = specs[pid]
-        back = _back_edge(footprint(spec, pl).bounds, pl.rotation)
-        if spec.category in cats or spec.against_wall:
-            asked += 1
-            near = back.intersection(walls.buffer(_WALL_GAP, cap_style="flat")).length
-            met += near >= 0.8 * back.length
-        if spec.category == "bed":
-            asked += 1
-            met += not any(back.distance(w) <= _WALL_GAP for w in windows)
-    return met, asked
 
 
 def _free_share(plan: Plan, rules: RuleSet) -> float:
@@ -207,7 +168,6 @@ def compare_row(plan: Plan, name: str, rules: RuleSet | None = None) -> Row:
     result = audit(plan, rs)
     routes = score_routes(plan, rs)
     turning = result.by_rule("turning.space")
-    met, asked = _preferences(plan, rs)
     return Row(
         name=name, plan=plan, rules=rs, audit=result, routes=routes,
         rules_failed=len(result.failures),
@@ -216,7 +176,7 @@ def compare_row(plan: Plan, name: str, rules: RuleSet | None = None) -> Row:
         narrowest_mm=routes.narrowest_mm,
         turning_have=sum(f.ok for f in turning), turning_need=len(turning),
         free_floor_share=_free_share(plan, rs),
-        preferences_met=met, preferences_total=asked,
+        quality=quality(plan, rs),
     )
 
 
@@ -227,7 +187,7 @@ def _best(rows: Sequence[Row]) -> tuple[tuple[str, tuple[int, ...]], ...]:
         vals = [(i, v) for i, v in vals if v is not None]
         if len(vals) < 2:
             continue
-        pick = min if m.better == "lower" else max
+        pick = min if m.better == Better.LOWER else max
         top = pick(v for _, v in vals)
         winners = tuple(i for i, v in vals if v == top)
         if len(winners) < len(vals):
@@ -263,6 +223,7 @@ def render_table(comparison: Comparison, mark: str = "*") -> str:
              for line in table]
     lines.insert(1, "  ".join("-" * w for w in widths))
     notes = [f"{mark} best value" if comparison.best else "no metric tells the arrangements apart"]
+    notes += quality_notes(comparison)
     for r in rows:
         for t in r.routes.unreachable:
             notes.append(f"{r.name}: {t.name} unreachable: {t.reason}")
@@ -275,3 +236,14 @@ def render_table(comparison: Comparison, mark: str = "*") -> str:
                 "no default trip applies either (they join a placed bed to a WC, or a "
                 "kitchen to the entrance, a placed table or sofa)"))
     return "\n".join(lines + [""] + notes)
+
+
+def quality_notes(comparison: Comparison) -> list[str]:
+    """Each arrangement's group rules and preferences, one line each with the measured value
+    and its target (failures first): what the counts in the table stand for."""
+    out: list[str] = []
+    for r in comparison.rows:
+        if r.quality:
+            out.append(f"{r.name}, layout quality (advisory):")
+            out += ["  " + line for line in quality_lines(r.quality)]
+    return out

@@ -17,7 +17,7 @@ import re
 from html import escape
 
 from roomfit.audit.check import AREA_RULES, marks_for
-from roomfit.present.compare import METRICS, Comparison, Row
+from roomfit.present.compare import METRICS, Better, Comparison, Row
 from roomfit.present.draw import draw_svg
 
 __all__ = ["PDF_NOTE", "build_report", "drawing"]
@@ -69,7 +69,7 @@ def _metrics_table(cmp: Comparison) -> str:
             best = cmp.is_best(m.id, i)
             text = escape(r.text(m.id)) + (" &#9733; best" if best else "")
             cells.append(f"<td class='best'>{text}</td>" if best else f"<td>{text}</td>")
-        better = "lower is better" if m.better == "lower" else "higher is better"
+        better = "lower is better" if m.better == Better.LOWER else "higher is better"
         out.append(f"<tr><td>{escape(m.label)} <span class='note'>({better})</span></td>"
                    + "".join(cells) + "</tr>")
     out.append("</table>")
@@ -140,6 +140,22 @@ def _findings(row: Row) -> str:
     return "\n".join(out)
 
 
+def _quality(row: Row) -> str:
+    """Each group rule and preference of the layout-quality audit: measured value, target,
+    result and source (advisory; failures first)."""
+    if not row.quality:
+        return "<p>No functional group to measure (no bed, seat, table or desk placed).</p>"
+    out = ["<table class='findings'><tr><th>Check</th><th>Kind</th><th>Measured</th>"
+           "<th>Target</th><th>Result</th><th>Source</th></tr>"]
+    for c in sorted(row.quality, key=lambda c: (c.ok, str(c.kind))):
+        state = "<span class='pass'>met</span>" if c.ok else "<span class='fail'>not met</span>"
+        out.append(f"<tr><td>{escape(c.label)}</td><td>{escape(str(c.kind))}</td>"
+                   f"<td>{escape(c.shown)}</td><td>{escape(c.target)}</td><td>{state}</td>"
+                   f"<td>{escape(c.source)}</td></tr>")
+    out.append("</table>")
+    return "\n".join(out)
+
+
 def build_report(comparison: Comparison, *, caution: str, title: str | None = None,
                  date: _dt.date | None = None) -> str:
     """The client report for the arrangements of ``comparison`` as one HTML page.
@@ -184,6 +200,8 @@ def build_report(comparison: Comparison, *, caution: str, title: str | None = No
         parts.append(_routes_table(r))
         parts.append("<h3>Rule findings</h3>")
         parts.append(_findings(r))
+        parts.append("<h3>Layout quality (advisory)</h3>")
+        parts.append(_quality(r))
     parts += [f"<p class='caution'>{escape(caution)}</p>",
               f"<p class='note'>{escape(PDF_NOTE)}</p>", "</body></html>"]
     return "\n".join(parts) + "\n"

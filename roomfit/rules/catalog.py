@@ -24,6 +24,7 @@ from roomfit.plan.data import Piece, Plan
 from roomfit.rules.sets import RuleSet
 
 __all__ = [
+    "GROUPS",
     "RELATIONS",
     "SIDES",
     "TALL_HEIGHT",
@@ -47,6 +48,15 @@ TALL_HEIGHT = 1200
 #: ``in_front``: stands in front of the target's front (coffee table and sofa);
 #: ``facing``: faces the target across the room (sofa and TV unit).
 RELATIONS = ("beside_head", "in_front", "facing")
+
+#: Functional groups a type may take part in (the rules of each are measured by
+#: ``roomfit.audit.quality``, values in ``data/groups.toml``):
+#: ``sleeping``: a bed with its nightstands (head against a wall, not under a window);
+#: ``viewing``: a seat facing a screen; ``lounge``: a coffee table in front of a seat;
+#: ``conversation``: seats within speaking distance, turned to each other;
+#: ``dining``: a table with its chairs and their pull-out room; ``work``: a desk with its
+#: chair and knee height; ``rug``: a rug under the group of its room.
+GROUPS = ("sleeping", "viewing", "lounge", "conversation", "dining", "work", "rug")
 
 #: Sides of a piece, in its own frame (its front faces local +y).
 SIDES = ("front", "back", "left", "right")
@@ -78,6 +88,8 @@ class FurnitureType:
     #: zones: room for a nightstand beside a bed's head. Common practice: a 455 mm nightstand
     #: [S6] plus 45 mm play.
     head_clear: int = 0
+    #: Functional groups (:data:`GROUPS`) the type takes part in.
+    groups: tuple[str, ...] = ()
 
     @property
     def touch_sides(self) -> tuple[str, ...]:
@@ -121,6 +133,7 @@ class PieceSpec:
     view_min: float = 0.0
     view_max: float = 0.0
     screen: int = 0
+    groups: tuple[str, ...] = ()
 
     @property
     def tall(self) -> bool:
@@ -155,6 +168,7 @@ def _bundled_catalog() -> tuple[FurnitureType, ...]:
             view_max=float(raw.get("view_max", 0.0)),
             screen=int(raw.get("screen", 0)),
             head_clear=int(raw.get("head_clear", 0)),
+            groups=tuple(raw.get("groups", ())),
         )
     return tuple(out.values())
 
@@ -175,7 +189,7 @@ def type_record(t: FurnitureType, rules: RuleSet | None = None) -> dict[str, obj
         "relations": [{"relation": r, "target": c} for r, c in t.relations],
         "gap_min": t.gap_min, "gap_max": t.gap_max,
         "view_min": t.view_min, "view_max": t.view_max, "screen": t.screen,
-        "source": t.source,
+        "groups": list(t.groups), "source": t.source,
     }
 
 
@@ -211,6 +225,10 @@ def catalog_problems(catalog: dict[str, FurnitureType]) -> list[Problem]:
                                         f"use one of {', '.join(RELATIONS)}"))
             if target not in categories:
                 problems.append(Problem(f"{field}.relations", f"no type has category {target!r}"))
+        for g in t.groups:
+            if g not in GROUPS:
+                problems.append(Problem(f"{field}.groups", f"unknown group {g!r}",
+                                        f"use one of {', '.join(GROUPS)}"))
         if t.gap_min > t.gap_max or t.view_min > t.view_max or t.gap_min < 0 or t.view_min < 0:
             problems.append(Problem(field, "gap and viewing ranges must run from low to high"))
     return problems
@@ -274,6 +292,7 @@ def resolve_piece(
         view_min=t.view_min,
         view_max=t.view_max,
         screen=t.screen,
+        groups=t.groups,
     )
 
 
