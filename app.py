@@ -25,7 +25,7 @@ import streamlit as st
 from roomfit import page
 from roomfit.audit.geometry import room_polygon
 from roomfit.audit.quality import quality_record
-from roomfit.cli import CAUTION
+from roomfit.caution import CAUTION
 from roomfit.errors import RoomfitError
 from roomfit.plan.data import Plan
 from roomfit.plan.read import read_plan
@@ -415,7 +415,7 @@ def _present(row: Any, index: int) -> dict[str, Any]:
     single = compare.Comparison((row,), ())
     title = f"{row.plan.name}: {row.name}"
     return {"row": row, "svg": report.drawing(row, index),
-            "report": report.build_report(single, caution=CAUTION, title=title)}
+            "report": report.build_report(single, title=title)}
 
 
 def _solve(plan: Plan, rules: RuleSet) -> None:
@@ -465,7 +465,7 @@ def _results(done: dict[str, Any]) -> None:
                                     [f"Arrangement {i + 1}" for i in range(len(result.candidates))],
                                     rules)
             shown = [_present(row, i) for i, row in enumerate(table.rows)]
-            done["shown"] = (shown, table, report.build_report(table, caution=CAUTION))
+            done["shown"] = (shown, table, report.build_report(table))
     shown, table, both = done["shown"]
     cols = st.columns(len(shown))
     for i, (col, cand, a) in enumerate(zip(cols, result.candidates, shown, strict=True)):

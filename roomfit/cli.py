@@ -14,17 +14,15 @@ import os
 import sys
 from collections.abc import Callable, Sequence
 
+from roomfit.caution import CAUTION
 from roomfit.errors import Problem, RoomfitError
 from roomfit.plan.data import Plan
 from roomfit.plan.read import read_plan
 from roomfit.rules.catalog import load_catalog, type_record
-from roomfit.rules.sets import RuleSet, load_ruleset, rule_record, rules_for, ruleset_ids
+from roomfit.rules.sets import RuleSet, choose_rules, load_ruleset, rule_record, rules_for, ruleset_ids
 
-__all__ = ["CAUTION", "main", "build_parser"]
+__all__ = ["main", "build_parser"]
 
-#: Printed with every summary, report and on the page.
-CAUTION = ("Caution: these results are advisory. Local building codes, the accessibility "
-           "standards in force where the client lives, and licensed professionals decide.")
 
 EXIT_OK, EXIT_FAIL, EXIT_BAD_INPUT, EXIT_TIMEOUT = 0, 1, 2, 3
 
@@ -133,19 +131,10 @@ def _cmd_rules(args: argparse.Namespace) -> int:
     return EXIT_OK
 
 
-def _chosen_rules(plan: Plan, name: str | None) -> RuleSet:
-    """The rule set a command judges ``plan`` by: the plan's own with its overrides, or the
-    set named by ``--rules`` as published. The plan's overrides were written for its own set,
-    so they carry over only when ``--rules`` names that same set."""
-    if name is None or name == plan.rules.set:
-        return rules_for(plan)
-    return load_ruleset(name)
-
-
 def _plan_and_rules(args: argparse.Namespace) -> tuple[Plan, RuleSet]:
-    """The plan file and the rule set to use (see ``_chosen_rules``)."""
+    """The plan file and the rule set to use (see ``rules.sets.choose_rules``)."""
     plan = read_plan(args.plan)
-    return plan, _chosen_rules(plan, getattr(args, "rules", None))
+    return plan, choose_rules(plan, getattr(args, "rules", None))
 
 
 def _cmd_draw(args: argparse.Namespace) -> int:
@@ -184,7 +173,7 @@ def _cmd_check(args: argparse.Namespace) -> int:
     if args.draw:
         refuse_input_overwrite(args.draw, args.plan)
     plan = read_plan(args.plan)
-    rules = _chosen_rules(plan, args.rules)
+    rules = choose_rules(plan, args.rules)
     result = audit(plan, rules)
     groups = quality(plan, rules)
     if args.draw:
@@ -282,15 +271,15 @@ def _cmd_solve(args: argparse.Namespace) -> int:
     return EXIT_OK
 
 
-def _arrangements(args: argparse.Namespace) -> tuple[list[Plan], list[str], RuleSet | None]:
-    """The plans named on the command line, a label for each, and ``--rules`` if given."""
+def _arrangements(args: argparse.Namespace) -> tuple[list[Plan], list[str], list[RuleSet]]:
+    """The plans named on the command line, a label for each, and the rule set each is judged
+    by (``rules.sets.choose_rules`` with ``--rules``: the same policy as ``check``)."""
     from pathlib import Path
 
     plans = [read_plan(p) for p in args.plans]
     stems = [Path(p).stem for p in args.plans]
     names = stems if len(set(stems)) == len(stems) else list(args.plans)
-    rules = load_ruleset(args.rules) if args.rules else None
-    return plans, names, rules
+    return plans, names, [choose_rules(p, args.rules) for p in plans]
 
 
 def _write_report(args: argparse.Namespace, path: str, comparison, title: str | None) -> None:  # noqa: ANN001
@@ -298,7 +287,7 @@ def _write_report(args: argparse.Namespace, path: str, comparison, title: str | 
     from roomfit.present.report import build_report
 
     refuse_input_overwrite(path, *args.plans)
-    atomic_write(path, build_report(comparison, caution=CAUTION, title=title))
+    atomic_write(path, build_report(comparison, title=title))
 
 
 def _cmd_compare(args: argparse.Namespace) -> int:

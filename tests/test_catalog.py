@@ -15,7 +15,8 @@ from pathlib import Path
 import pytest
 from reference_rows import STATUS, cited_rows, oracle
 
-from roomfit.cli import CAUTION, main
+from roomfit.caution import CAUTION
+from roomfit.cli import main
 from roomfit.errors import PlanError
 from roomfit.plan.data import Piece
 from roomfit.rules.catalog import (

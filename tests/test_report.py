@@ -11,7 +11,8 @@ from pathlib import Path
 
 import pytest
 
-from roomfit.cli import CAUTION, main
+from roomfit.caution import CAUTION
+from roomfit.cli import main
 from roomfit.plan.read import read_plan
 from roomfit.present.compare import compare
 from roomfit.present.report import PDF_NOTE, build_report
@@ -36,7 +37,7 @@ class _Tags(HTMLParser):
 def two() -> tuple:
     plans = [read_plan(PLANS / "studio.toml"), read_plan(PLANS / "one-bed.toml")]
     cmp = compare(plans, ["studio", "one-bed"])
-    return cmp, build_report(cmp, caution=CAUTION, date=dt.date(2026, 3, 14))
+    return cmp, build_report(cmp, date=dt.date(2026, 3, 14))
 
 
 def test_report_is_self_contained_with_one_drawing_per_arrangement(two):
@@ -51,7 +52,7 @@ def test_report_is_self_contained_with_one_drawing_per_arrangement(two):
 
 def test_report_holds_caution_date_names_metrics_and_sources(two):
     cmp, html = two
-    assert html.count(escape(CAUTION)) == 2  # top and bottom
+    assert html.count(f"<p class='caution'>{escape(CAUTION)}</p>") == 2  # top and bottom
     assert "2026-03-14" in html and escape(cmp.rows[0].plan.name) in html
     assert escape(PDF_NOTE) in html
     for label in ("Rules failed", "Walking per day", "Narrowest on a routine route",
@@ -106,5 +107,5 @@ def test_report_areas_in_square_centimetres():
     # the 400 x 400 mm column at x 3300..3700, y 2800..3200 covers 400 x 300 mm of it:
     # 120 000 mm2 = 1200 cm2 (1 cm2 = 100 mm2)
     plan = read_plan(Path(__file__).parent / "plans_unseen" / "column-room.toml")
-    html = build_report(compare([plan], None), caution=CAUTION, date=dt.date(2026, 3, 14))
+    html = build_report(compare([plan], None), date=dt.date(2026, 3, 14))
     assert "<td>1200 cm&sup2;</td><td>none</td>" in html  # none of the zone may be covered

@@ -22,7 +22,7 @@ from roomfit.audit.geometry import footprint, room_polygon, side_direction
 from roomfit.cli import main
 from roomfit.plan.read import loads_plan, read_plan
 from roomfit.rules.catalog import load_catalog, resolve_pieces
-from roomfit.rules.sets import load_ruleset, rules_for
+from roomfit.rules.sets import choose_rules, load_ruleset, rules_for
 from roomfit.solve.model import cover_rects, cross_thickness
 from roomfit.solve.search import SolveOptions, SolveResult, solve
 
@@ -40,13 +40,13 @@ def _solved(path: str, rule_set: str | None) -> SolveResult:
 @cache
 def _solved_as(path: str, rule_set: str) -> SolveResult:
     plan = read_plan(path)
-    rules = load_ruleset(rule_set, plan.rules.override_map())
+    rules = choose_rules(plan, rule_set)
     return solve(plan, rules, SolveOptions(candidates=2, time_limit=20.0, seed=0))
 
 
 def _rules(path: Path, rule_set: str | None):
     plan = read_plan(path)
-    return plan, (load_ruleset(rule_set, plan.rules.override_map()) if rule_set else rules_for(plan))
+    return plan, choose_rules(plan, rule_set)
 
 
 def _assert_answer(path: Path, rule_set: str | None) -> SolveResult:
@@ -333,7 +333,6 @@ def test_model_zones_match_the_checker_zones_for_every_rotation():
     from roomfit.audit.geometry import zone_polygon
     from roomfit.plan.data import Piece, Placement
     from roomfit.rules.catalog import load_catalog, resolve_piece
-    from roomfit.rules.sets import load_ruleset
     from roomfit.solve.model import _zone_rect_expr
 
     spec = resolve_piece(Piece("b", "bed-double-160", ("r",)), load_ruleset("everyday"),

@@ -598,6 +598,7 @@ def turning_space(free: BaseGeometry, size: float, shape: str,
     blocked counts as blocked, which is conservative: a space that fits only off the grid
     by less than a cell may be missed.
 
+    >>> from shapely import box
     >>> turning_space(box(0, 0, 1500, 1500), 1500, "circle").fits
     True
     >>> turning_space(box(0, 0, 1490, 1500), 1500, "circle").fits

@@ -196,16 +196,20 @@ def _best(rows: Sequence[Row]) -> tuple[tuple[str, tuple[int, ...]], ...]:
 
 
 def compare(plans: Sequence[Plan], names: Sequence[str] | None = None,
-            rules: RuleSet | None = None) -> Comparison:
+            rules: RuleSet | Sequence[RuleSet] | None = None) -> Comparison:
     """One row per arrangement (each plan's as-is layout), best values marked.
 
-    ``names`` label the rows (default: the plans' names); ``rules`` applies one rule set to
-    all (default: each plan's own, with its overrides).
+    ``names`` label the rows (default: the plans' names); ``rules`` is one rule set for all,
+    one per plan (as ``rules.sets.choose_rules`` picks them for ``--rules``), or None for each
+    plan's own with its overrides.
     """
     labels = list(names) if names is not None else [p.name for p in plans]
     if len(labels) != len(plans):
         raise ValueError("compare needs one name per plan")
-    rows = tuple(compare_row(p, n, rules) for p, n in zip(plans, labels, strict=True))
+    per_plan = list(rules) if isinstance(rules, Sequence) else [rules] * len(plans)
+    if len(per_plan) != len(plans):
+        raise ValueError("compare needs one rule set per plan")
+    rows = tuple(compare_row(p, n, r) for p, n, r in zip(plans, labels, per_plan, strict=True))
     return Comparison(rows, _best(rows))
 
 

@@ -41,6 +41,7 @@ from roomfit.audit.geometry import (
     window_segment,
 )
 from roomfit.audit.marks import Mark, Path
+from roomfit.caution import CAUTION
 from roomfit.plan.data import Leaf, Plan
 from roomfit.plan.openings import MAX_WALL_THICKNESS
 from roomfit.rules.catalog import resolve_pieces
@@ -81,9 +82,6 @@ STYLE: dict[str, str] = {
 
 _FONT = "DejaVu Sans, Helvetica, Arial, sans-serif"
 _MARGIN_MM = 500
-_CAUTION = ("Advisory drawing: clearances shown are the rule set's figures. Local building codes, "
-            "the accessibility standards in force where the client lives, and licensed "
-            "professionals decide.")
 
 
 def _num(v: float) -> str:
@@ -487,7 +485,7 @@ def _title_block(c: _Canvas, plan: Plan, rules: RuleSet, title: str | None, top:
     column_px = width_px * 0.56 - 14 - 12
     left = [(part, size, weight) for s, size, weight in left
             for part in _wrap(s, column_px, size * (1.1 if weight == "bold" else 1.0))]
-    caution = _wrap(_CAUTION, width_px - 2 * 14, 9)
+    caution = _wrap(CAUTION, width_px - 2 * 14, 9)
     feet = plan.unit in ("in", "ft")  # a plan measured in feet and inches gets a feet bar too
     rows = max(sum(1.25 if size > 12 else 1 for _, size, _ in left),
                len(right) + 2.2 + (1.8 if feet else 0))

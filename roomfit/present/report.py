@@ -17,6 +17,7 @@ import re
 from html import escape
 
 from roomfit.audit.check import AREA_RULES, marks_for
+from roomfit.caution import CAUTION
 from roomfit.present.compare import METRICS, Better, Comparison, Row
 from roomfit.present.draw import draw_svg
 
@@ -156,12 +157,12 @@ def _quality(row: Row) -> str:
     return "\n".join(out)
 
 
-def build_report(comparison: Comparison, *, caution: str, title: str | None = None,
+def build_report(comparison: Comparison, *, title: str | None = None,
                  date: _dt.date | None = None) -> str:
     """The client report for the arrangements of ``comparison`` as one HTML page.
 
-    ``caution`` is printed at the top and the bottom (the CLI and the page pass their
-    ``CAUTION``); ``date`` defaults to today. Areas in findings are shown in cm2.
+    The caution (``roomfit.caution.CAUTION``) is printed at the top and the bottom and in
+    each drawing's title block; ``date`` defaults to today. Areas in findings are shown in cm2.
     """
     rows = comparison.rows
     first = rows[0].plan
@@ -184,7 +185,7 @@ def build_report(comparison: Comparison, *, caution: str, title: str | None = No
         f"<title>{escape(heading)}</title><style>{_CSS}</style></head><body>",
         f"<h1>{escape(heading)}</h1>",
         f"<p class='meta'>{' &middot; '.join(meta)}</p>",
-        f"<p class='caution'>{escape(caution)}</p>",
+        f"<p class='caution'>{escape(CAUTION)}</p>",
         "<h2>Drawings</h2>",
         "<p class='note'>Drawn to scale (see each drawing's scale bar); routine routes drawn as "
         "lines, failed rules marked.</p>",
@@ -203,5 +204,6 @@ def build_report(comparison: Comparison, *, caution: str, title: str | None = No
         parts.append("<h3>Layout quality (advisory)</h3>")
         parts.append(_quality(r))
     parts += [f"<p class='caution'>{escape(caution)}</p>",
+    parts += [f"<p class='caution'>{escape(CAUTION)}</p>",
               f"<p class='note'>{escape(PDF_NOTE)}</p>", "</body></html>"]
     return "\n".join(parts) + "\n"

@@ -50,6 +50,7 @@ __all__ = [
     "rule_record",
     "load_ruleset",
     "rules_for",
+    "choose_rules",
 ]
 
 STATUSES = ("verified", "memory", "common-practice")
@@ -302,3 +303,21 @@ def rules_for(plan: object) -> RuleSet:
     """The rule set a plan picks, with its overrides applied."""
     choice = plan.rules  # type: ignore[attr-defined]
     return load_ruleset(choice.set, choice.override_map())
+
+
+def choose_rules(plan: object, name: str | None = None) -> RuleSet:
+    """The rule set every command and the page judge ``plan`` by: the plan's own set with its
+    overrides, or the set named ``name`` as published. The plan's overrides were written for
+    its own set, so they carry over only when ``name`` is that same set (or None).
+
+    >>> from roomfit.plan.data import Plan, RuleChoice
+    >>> plan = Plan(name="x", rooms=(), rules=RuleChoice("everyday", (("route.width", 1000),)))
+    >>> choose_rules(plan).get("route.width").mm, choose_rules(plan, "everyday").get("route.width").mm
+    (1000, 1000)
+    >>> choose_rules(plan, "ada-2010").get("route.width").mm   # 36 in, as published
+    914
+    """
+    choice = plan.rules  # type: ignore[attr-defined]
+    if name is None or name == choice.set:
+        return load_ruleset(choice.set, choice.override_map())
+    return load_ruleset(name)
