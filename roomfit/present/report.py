@@ -203,7 +203,6 @@ def build_report(comparison: Comparison, *, title: str | None = None,
         parts.append(_findings(r))
         parts.append("<h3>Layout quality (advisory)</h3>")
         parts.append(_quality(r))
-    parts += [f"<p class='caution'>{escape(caution)}</p>",
     parts += [f"<p class='caution'>{escape(CAUTION)}</p>",
               f"<p class='note'>{escape(PDF_NOTE)}</p>", "</body></html>"]
     return "\n".join(parts) + "\n"
