@@ -48,7 +48,7 @@ def _sofa_at(gap: int, shift: int = 0) -> Piece:
 
 @pytest.mark.parametrize(("gap", "ok"), [(1663, True), (1662, False), (3492, True), (3493, False)])
 def test_viewing_distance_at_its_limits(gap: int, ok: bool) -> None:
-    # THX display set-up: nearest seat 1.19 x diagonal -> ceil(1.19 x 1397) = 1663 mm;
+    # nearest seat 1.19 x diagonal (row E26, common practice: a 40° field) -> ceil(1.19 x 1397) = 1663 mm;
     # rule of thumb 2.5 x diagonal (common practice) -> floor(2.5 x 1397) = 3492 mm.
     c = _one(_measure(TV, _sofa_at(gap)), "group.view")
     assert c.ok is ok and c.target == "1.66 m-3.49 m"
