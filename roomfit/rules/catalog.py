@@ -20,7 +20,7 @@ from dataclasses import dataclass
 from importlib import resources
 
 from roomfit.errors import PlanError, Problem
-from roomfit.plan.data import Piece, Plan
+from roomfit.plan.data import SIDES, Piece, Plan
 from roomfit.rules.sets import RuleSet
 
 __all__ = [
@@ -57,10 +57,6 @@ RELATIONS = ("beside_head", "in_front", "facing")
 #: ``dining``: a table with its chairs and their pull-out room; ``work``: a desk with its
 #: chair and knee height; ``rug``: a rug under the group of its room.
 GROUPS = ("sleeping", "viewing", "lounge", "conversation", "dining", "work", "rug")
-
-#: Sides of a piece, in its own frame (its front faces local +y).
-SIDES = ("front", "back", "left", "right")
-
 
 @dataclass(frozen=True)
 class FurnitureType:
