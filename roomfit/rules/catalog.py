@@ -58,6 +58,7 @@ RELATIONS = ("beside_head", "in_front", "facing")
 #: chair and knee height; ``rug``: a rug under the group of its room.
 GROUPS = ("sleeping", "viewing", "lounge", "conversation", "dining", "work", "rug")
 
+
 @dataclass(frozen=True)
 class FurnitureType:
     """A catalogue entry. ``zones`` maps a side to the zone kind used on that side."""
