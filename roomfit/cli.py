@@ -323,6 +323,29 @@ def _cmd_report(args: argparse.Namespace) -> int:
     return EXIT_OK
 
 
+def _cmd_import(args: argparse.Namespace) -> int:
+    from roomfit.files import atomic_write, refuse_input_overwrite
+    from roomfit.plan.ifc_import import import_ifc, plan_text, summary_text
+    from roomfit.plan.ifc_read import INSTALL_HINT, have_ifc, summarise_model
+
+    if not have_ifc():
+        raise RoomfitError(Problem("", "reading IFC needs ifcopenshell", INSTALL_HINT), args.model)
+    if args.list:
+        print(summary_text(summarise_model(args.model)))
+        return EXIT_OK
+    if not args.output:
+        raise RoomfitError(Problem("-o", "give the plan file to write, e.g. -o plan.toml",
+                                   "or --list to see the storeys and spaces"), args.model)
+    refuse_input_overwrite(args.output, args.model)
+    imported = import_ifc(args.model, storey=args.storey, spaces=args.spaces, rules=args.rules,
+                          entrance=args.entrance)
+    text = plan_text(imported, CAUTION)
+    atomic_write(args.output, text)
+    print("\n".join(line[2:] for line in text.splitlines() if line.startswith("# ")))
+    print(f"wrote {args.output}")
+    return EXIT_OK
+
+
 def _version() -> str:
     from importlib.metadata import PackageNotFoundError, version
 
@@ -405,6 +428,19 @@ def build_parser() -> argparse.ArgumentParser:
                    "overrides (default: each plan's own set and overrides)")
     p.add_argument("--title", help="title of the report")
     p.set_defaults(func=_cmd_report)
+    p = sub.add_parser("import", help="read one storey of an IFC building model (IFC2x3, IFC4) "
+                       "into a plan file, reporting every guess")
+    p.add_argument("model", help="IFC model (.ifc)")
+    p.add_argument("-o", "--output", metavar="PLAN", help="plan file to write (.toml)")
+    p.add_argument("--list", action="store_true", help="list the storeys, spaces and flats")
+    p.add_argument("--storey", metavar="NAME|N", help="storey name or number from --list "
+                   "(default: the one with most spaces and doors)")
+    p.add_argument("--spaces", metavar="PATTERN", help="only spaces whose name or long name "
+                   "matches this pattern (* and ? wildcards)")
+    p.add_argument("--entrance", metavar="DOOR", help="the entrance door (GlobalId, IFC name or "
+                   "plan id; default: the doors to no imported space)")
+    p.add_argument("--rules", metavar="SET", help="rule set for the plan (default: everyday)")
+    p.set_defaults(func=_cmd_import)
     return parser
 
 

@@ -23,6 +23,10 @@ STAGE = {
     # the reader validates piece types and rule-set names against the rules stage
     "plan.fields": 3, "plan.openings": 3, "plan.read": 3, "plan.write": 3,
     "audit": 3, "audit.geometry": 3, "audit.marks": 3, "audit.quality": 3,
+    # the IFC import: neutral floor data, then the reader (sole user of ifcopenshell) and
+    # the pure-shapely steps that make a Plan of it
+    "plan.floordata": 1, "plan.ifc_read": 3, "plan.floor_base": 3, "plan.floor_doors": 3,
+    "plan.floor_items": 3, "plan.floor": 3, "plan.ifc_import": 3,
     "audit.check": 4, "audit.routes": 4,
     "solve": 5, "solve.model": 5, "solve.explain": 5, "solve.search": 6,
     "present": 7, "present.draw": 7, "present.export": 7, "present.compare": 7,

@@ -15,7 +15,7 @@ from dataclasses import dataclass, replace
 from shapely import LineString, Point, Polygon, union_all
 
 from roomfit.audit.geometry import wall_direction
-from roomfit.errors import RoomfitError
+from roomfit.errors import Problem, RoomfitError
 from roomfit.plan.data import OUTSIDE, Door, Plan, Room, RuleChoice, Window
 from roomfit.plan.floor_base import (
     Note,
@@ -41,11 +41,16 @@ class FloorError(RoomfitError):
 
 @dataclass(frozen=True)
 class Imported:
-    """The plan made from a floor, the report lines, and the storey's turn (degrees)."""
+    """The plan made from a floor, the report lines, and the storey's turn (model -> plan)."""
 
     plan: Plan
     notes: tuple[Note, ...]
-    angle: float
+    placed: Placed
+
+    @property
+    def angle(self) -> float:
+        """Degrees the model's main walls ran off the axes (the plan is turned back by this)."""
+        return self.placed.angle
 
 
 def _wall_depth(walls: list[FloorWall], turned: list[Polygon], centre: tuple[float, float]) -> float:
@@ -101,8 +106,9 @@ def floor_to_plan(floor: Floor, *, rules: str | None = None, entrance: str | Non
     used: set[str] = set()
     rooms, gids = _rooms(floor, at, walls_t, used, notes)
     if not rooms:
-        raise FloorError(f"{floor.source}: storey {floor.storey!r} gives no room (no IfcSpace "
-                           "and no floor area enclosed by walls)")
+        raise FloorError(Problem("--storey", f"storey {floor.storey!r} gives no room (no IfcSpace "
+                                 "and no floor area enclosed by walls)", "pick another storey"),
+                         floor.source)
     polys = {r.id: Polygon(r.outline) for r in rooms}
     by_id = {r.id: r for r in rooms}
     doors: list[Door] = []
@@ -135,7 +141,7 @@ def floor_to_plan(floor: Floor, *, rules: str | None = None, entrance: str | Non
                 unit=plan_unit(floor.unit),
                 notes=f"Imported from IFC ({floor.schema}, {floor.unit}); storey {floor.storey!r} "
                       f"({floor.storey_gid}) turned by {-angle:.2f} degrees.")
-    return Imported(plan, tuple(notes), angle)
+    return Imported(plan, tuple(notes), at)
 
 
 def _unique(base: str, used: set[str]) -> str:
@@ -155,8 +161,8 @@ def _entrance(doors: list[Door], entrance: str | None, floor: Floor, gid_of: dic
                or fnmatch.fnmatchcase(names.get(gid_of.get(d.id, ""), ""), entrance)]
         if not hit:
             known = ", ".join(f"{d.id} ({gid_of.get(d.id, '')})" for d in doors) or "none"
-            raise FloorError(f"{floor.source}: --entrance {entrance!r} is not a door of the plan; "
-                               f"doors: {known}")
+            raise FloorError(Problem("--entrance", f"{entrance!r} is not a door of the plan",
+                                     f"doors: {known}"), floor.source)
         door = hit[0]
         if not door.is_entrance:
             door = replace(door, rooms=(door.rooms[0], OUTSIDE),

@@ -1,18 +1,8 @@
-"""Turn a neutral floor description (read from IFC by :mod:`roomfit.plan.ifc_read`) into a Plan.
+"""Shared pieces of the IFC import's pure-shapely steps: report lines, the storey's turn,
+room outlines (snapped to 1 mm, near-axis edges made straight), rooms from walls, ids.
 
-Pure shapely: no ifcopenshell here, so every rule below is tested on small hand-made floors.
-The steps, each of which reports what it guessed, assumed or skipped with the IFC GlobalId:
-
-1. turn the storey so its main walls run along the axes (the length-weighted mode of the
-   wall edges' directions, modulo 90 degrees) and move it to the first quadrant;
-2. rooms: IfcSpace footprints, snapped to whole millimetres with near-axis edges made
-   exactly straight; without IfcSpace, the floor areas enclosed by the walls' footprints;
-3. doors (:mod:`roomfit.plan.floor_doors`): the rooms on either side of the door's wall,
-   swing room and hinge side from the operation type and the door's frame; open links
-   where two spaces meet with no wall between; the entrance and any stair arrival;
-4. windows, fittings and furniture (:mod:`roomfit.plan.floor_items`).
-
-Lengths are millimetres throughout; the plan is written in the model's own unit.
+No ifcopenshell here: :mod:`roomfit.plan.floor` runs these with
+:mod:`roomfit.plan.floor_doors` and :mod:`roomfit.plan.floor_items`.
 """
 
 from __future__ import annotations
@@ -21,12 +11,12 @@ import math
 import re
 import unicodedata
 from collections import Counter
-from dataclasses import dataclass, replace
+from dataclasses import dataclass
 
 from shapely import Polygon, affinity, make_valid, set_precision, union_all
 from shapely.geometry.base import BaseGeometry
 
-from roomfit.plan.data import Plan, Room, RuleChoice
+from roomfit.plan.data import Room
 from roomfit.plan.floordata import Frame
 
 __all__ = [
@@ -39,6 +29,8 @@ __all__ = [
     "clean_outline",
     "rooms_from_walls",
     "plan_unit",
+    "make_rooms",
+    "turn",
 ]
 
 #: Coordinates are snapped to this grid (mm).
@@ -46,9 +38,6 @@ SNAP_MM = 1
 
 #: Edges within this many millimetres of running along an axis are made exactly straight.
 STRAIGHTEN_MM = 6
-
-_UNITS = {"metre": "m", "millimetre": "mm", "foot": "ft", "inch": "in", "centimetre": "cm"}
-
 
 @dataclass(frozen=True)
 class Note:
@@ -221,10 +210,6 @@ def _unique(base: str, used: set[str]) -> str:
         out, i = f"{base}-{i}", i + 1
     used.add(out)
     return out
-
-
-def with_rules(plan: Plan, rules: str | None) -> Plan:
-    return replace(plan, rules=RuleChoice(set=rules)) if rules else plan
 
 
 def make_rooms(spaces: list[tuple[str, str, str, Polygon]], used: set[str],

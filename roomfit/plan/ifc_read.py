@@ -28,7 +28,7 @@ import numpy as np
 from shapely import Polygon, union_all
 from shapely.geometry.base import BaseGeometry
 
-from roomfit.errors import RoomfitError
+from roomfit.errors import Problem, RoomfitError
 from roomfit.plan.floordata import (
     Floor,
     FloorDoor,
@@ -75,17 +75,18 @@ def have_ifc() -> bool:
 
 def _open(path: str | Path) -> Any:
     if ifcopenshell is None:
-        raise IfcError(f"{path}: reading IFC needs ifcopenshell; {INSTALL_HINT}")
+        raise IfcError(Problem("", "reading IFC needs ifcopenshell", INSTALL_HINT), str(path))
     p = Path(path)
     if not p.is_file():
-        raise IfcError(f"{p}: no such file")
+        raise IfcError(Problem("", "no such file"), str(p))
     try:
         model = ifcopenshell.open(str(p))
     except Exception as e:  # the library raises several types for a bad STEP file
         first = str(e).strip().splitlines()[0] if str(e).strip() else type(e).__name__
-        raise IfcError(f"{p}: not a readable IFC file ({first})") from None
+        raise IfcError(Problem("", f"not a readable IFC file ({first})"), str(p)) from None
     if model.schema not in ("IFC2X3", "IFC4", "IFC4X3", "IFC4X3_ADD2"):
-        raise IfcError(f"{p}: schema {model.schema} is not supported (IFC2X3 or IFC4 expected)")
+        raise IfcError(Problem("schema", f"{model.schema} is not supported",
+                                     "export the model as IFC2x3 or IFC4"), str(p))
     return model
 
 
@@ -138,11 +139,11 @@ def summarise_model(path: str | Path) -> ModelSummary:
     return ModelSummary(str(path), model.schema, _unit_name(scale), tuple(storeys), tuple(zones))
 
 
-def _pick_storey(model: Any, storey: str | None) -> tuple[Any, str]:
+def _pick_storey(model: Any, storey: str | None, source: str) -> tuple[Any, str]:
     """The storey named or numbered (from 1, lowest first); by default the one with most rooms."""
     all_ = _storeys(model)
     if not all_:
-        raise IfcError("the model has no IfcBuildingStorey")
+        raise IfcError(Problem("", "the model has no IfcBuildingStorey"), source)
     names = ", ".join(f"{i} {s.Name!r}" for i, s in enumerate(all_, start=1))
     if storey is None:
         best = max(all_, key=lambda s: (len(_contained(s, "IfcSpace")),
@@ -152,10 +153,11 @@ def _pick_storey(model: Any, storey: str | None) -> tuple[Any, str]:
         n = int(storey)
         if 1 <= n <= len(all_):
             return all_[n - 1], ""
-        raise IfcError(f"--storey {storey}: no such storey number; storeys: {names}")
+        raise IfcError(Problem("--storey", f"no storey number {storey}", f"storeys: {names}"), source)
     hits = [s for s in all_ if (s.Name or "").casefold() == storey.casefold() or s.GlobalId == storey]
     if not hits:
-        raise IfcError(f"--storey {storey!r}: no storey of that name; storeys: {names}")
+        raise IfcError(Problem("--storey", f"no storey named {storey!r}", f"storeys: {names}"),
+                       source)
     return hits[0], ""
 
 
@@ -260,7 +262,7 @@ def read_floor(path: str | Path, storey: str | None = None,
     """
     model = _open(path)
     scale = ifcopenshell.util.unit.calculate_unit_scale(model)
-    st, note = _pick_storey(model, storey)
+    st, note = _pick_storey(model, storey, str(path))
     settings = _settings()
     skipped: list[Skipped] = []
     floor_spaces = _read_spaces(st, settings, spaces, skipped, path)
@@ -330,8 +332,8 @@ def _read_spaces(st: Any, settings: Any, pattern: str | None, skipped: list[Skip
                               _stated_area(sp)))
     if pattern and not out:
         known = ", ".join(f"{s.Name} ({s.LongName})" for s in all_spaces) or "none on this storey"
-        raise IfcError(f"{path}: --spaces {pattern!r} matches no space of storey {st.Name!r}; "
-                       f"spaces: {known}")
+        raise IfcError(Problem("--spaces", f"{pattern!r} matches no space of storey {st.Name!r}",
+                               f"spaces: {known}"), str(path))
     return out
 
 

@@ -110,11 +110,13 @@ def _piece_to_dict(p: Piece, u: str) -> dict[str, Any]:
     return d
 
 
-def dumps_plan(plan: Plan) -> str:
-    """The plan as plan-file text, in the plan's own unit."""
-    return tomli_w.dumps(_plan_to_dict(plan))
+def dumps_plan(plan: Plan, comment: str = "") -> str:
+    """The plan as plan-file text, in the plan's own unit; ``comment`` (any lines) goes on
+    top as a TOML comment block (an importer's report, for instance)."""
+    head = "".join(f"# {line}".rstrip() + "\n" for line in comment.splitlines())
+    return head + ("\n" if head else "") + tomli_w.dumps(_plan_to_dict(plan))
 
 
-def write_plan(plan: Plan, path: str | Path) -> Path:
-    """Write ``plan`` to ``path`` atomically."""
-    return atomic_write(path, dumps_plan(plan))
+def write_plan(plan: Plan, path: str | Path, comment: str = "") -> Path:
+    """Write ``plan`` to ``path`` atomically, with an optional comment block on top."""
+    return atomic_write(path, dumps_plan(plan, comment))
