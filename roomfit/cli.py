@@ -202,9 +202,11 @@ def _cmd_solve(args: argparse.Namespace) -> int:
     from pathlib import Path
 
     from roomfit.audit.check import audit
+    from roomfit.audit.routes import score_routes
     from roomfit.files import atomic_write, refuse_input_overwrite
     from roomfit.plan.data import RuleChoice
     from roomfit.plan.write import write_plan
+    from roomfit.solve.outcome import describe
     from roomfit.solve.search import SolveOptions, solve
 
     plan, rules = _plan_and_rules(args)
@@ -220,29 +222,15 @@ def _cmd_solve(args: argparse.Namespace) -> int:
     st = result.stats
     print(f"{args.plan}: {result.status} ({st.elapsed:.1f} s, {st.solves} solver runs, "
           f"{st.audits} audits, {st.cuts} layouts cut by the audit)")
-    if result.status == "impossible":
-        e = result.explanation
-        assert e is not None
-        print(f"No arrangement exists. {e.summary}")
-        for fix in e.fixes:
-            print(f"  fix: {fix}")
+    words = describe(result, options.time_limit)
+    if not result.candidates:
+        print(words.headline)
+        for line in words.details:
+            print(f"  {line}")
         print(CAUTION)
-        return EXIT_FAIL
-    if result.status == "timeout":
-        if st.elapsed < 0.8 * options.time_limit:  # the search gave up with time to spare
-            print(f"The search stopped after {st.elapsed:.1f} s of the {options.time_limit:g} s "
-                  "allowed without an arrangement that passes every rule. This is NOT proven "
-                  "impossible, but more time will not help: try fewer pieces, more rooms for "
-                  "them, or another --seed.")
-        else:
-            print(f"Nothing that passes every rule was found within {options.time_limit:g} s. "
-                  "This is NOT proven impossible: try a longer --time-limit or fewer pieces.")
-        print(CAUTION)
-        return EXIT_TIMEOUT
+        return EXIT_FAIL if result.status == "impossible" else EXIT_TIMEOUT
     stem = Path(args.plan).stem
     chosen = replace(plan, rules=RuleChoice(rules.id, plan.rules.overrides))
-    from roomfit.audit.routes import score_routes
-
     print(f"{'candidate':>9}  {'objective':>9}  {'optimal / gap':>13}  {'walking':>10}  checker  files")
     for c in result.candidates:
         furnished = chosen.with_layout(c.layout)
@@ -260,13 +248,16 @@ def _cmd_solve(args: argparse.Namespace) -> int:
             atomic_write(svg_path, draw_svg(furnished, rules, title=f"{plan.name}: candidate "
                                                                     f"{c.rank + 1}"))
             files.append(str(svg_path))
-        verdict = audit(furnished, rules)
+        verdict = c.audit if c.audit is not None else audit(furnished, rules)
         ok = sum(f.ok for f in verdict.findings)
         gap = "optimal" if c.optimal else f"gap {c.gap:.0%}"
         check = f"pass {ok}/{len(verdict.findings)}" if verdict.passed else "FAIL"
-        walking = f"{score_routes(furnished, rules).walking_m_per_day:.0f} m/day"
+        routes = c.routes if c.routes is not None else score_routes(furnished, rules)
+        walking = f"{routes.walking_m_per_day:.0f} m/day"
         print(f"{c.rank + 1:>9}  {c.objective:>9g}  {gap:>13}  {walking:>10}  {check:<7}  "
               f"{', '.join(files)}")
+    for line in words.details:
+        print(line)
     print(CAUTION)
     return EXIT_OK
 

@@ -22,7 +22,7 @@ from __future__ import annotations
 import queue
 import threading
 from collections.abc import Callable, Sequence
-from dataclasses import dataclass, replace
+from dataclasses import replace
 from pathlib import Path
 from typing import Any, TypeVar
 
@@ -33,6 +33,7 @@ from roomfit.plan.units import format_length
 from roomfit.plan.write import dumps_plan
 from roomfit.rules.catalog import load_catalog, resolve_pieces
 from roomfit.rules.sets import RuleSet, load_ruleset
+from roomfit.solve.outcome import Outcome, describe
 
 __all__ = [
     "EDITED_SOURCE",
@@ -315,37 +316,10 @@ def comparison_rows(comparison: Any, best_mark: str = " ★") -> list[dict[str, 
     return rows
 
 
-@dataclass(frozen=True)
-class Outcome:
-    """How the page reports a solve: ``level`` is ``success``, ``warning`` or ``error``."""
-
-    level: str
-    headline: str
-    details: tuple[str, ...] = ()
-
-
 def describe_outcome(result: Any, time_limit: float) -> Outcome:
-    """Plain words for a ``solver.SolveResult``: how many found, or why none.
-
-    ``impossible`` gives the explanation's summary and its fixes; ``timeout`` says the
-    furniture is *not* proven not to fit.
-    """
-    n = len(result.candidates)
-    ex = result.explanation
-    fixes = tuple(f"Try: {f}" for f in ex.fixes) if ex is not None else ()
-    if result.status in ("found", "optimal") and n:
-        best = " (the first is the best possible for the scoring used)" \
-            if result.status == "optimal" else ""
-        return Outcome("success", f"{n} arrangement{'s' if n != 1 else ''} found{best}.")
-    if result.status == "impossible":
-        summary = ex.summary if ex is not None else "The furniture cannot fit under these rules."
-        return Outcome("error", f"No arrangement exists: {summary}", fixes)
-    if result.status == "timeout" and n:
-        return Outcome("warning", f"{n} arrangement{'s' if n != 1 else ''} found before the "
-                       f"time limit of {time_limit:g} s; better ones may exist.")
-    return Outcome("warning", f"No arrangement found within {time_limit:g} s. This does not "
-                   "prove that the furniture cannot fit: allow more time, or remove or lock "
-                   "a piece and try again.", fixes)
+    """Plain words for a solve result: the one wording the CLI uses too
+    (``roomfit.solve.outcome.describe``)."""
+    return describe(result, time_limit)
 
 
 def run_polling(work: Callable[[Callable[[str], None]], T], tick: Callable[[str], None],

@@ -401,7 +401,7 @@ def test_outcome_words_for_timeout_and_impossible() -> None:
 
     none = SolveResult("timeout", (), None, SolveStats())
     words = page.describe_outcome(none, 20)
-    assert words.level == "warning" and "does not prove" in words.headline
+    assert words.level == "warning" and "NOT proven impossible" in words.headline
     ex = Explanation("the bed is longer than the room", ("bed",), ("piece.inside",),
                      ("without the bed it fits",))
     no = page.describe_outcome(SolveResult("impossible", (), ex, SolveStats()), 20)

@@ -42,12 +42,12 @@ def test_a_plan_without_a_name_says_so(tmp_path: Path, capsys: pytest.CaptureFix
     assert capsys.readouterr().out.splitlines()[0] == f"{plan}: valid plan (no name)"
 
 
-@pytest.mark.parametrize(("elapsed", "advice"), [(0.3, "more time will not help"),
-                                                 (9.9, "try a longer --time-limit")])
-def test_timeout_advice_follows_the_time_used(elapsed: float, advice: str, tmp_path: Path,
-                                              capsys: pytest.CaptureFixture[str],
-                                              monkeypatch: pytest.MonkeyPatch) -> None:
-    # a search that gives up after 0.3 s of 10 s must not advise a longer time limit
+@pytest.mark.parametrize("elapsed", [0.3, 9.9])
+def test_timeout_never_claims_more_time_will_not_help(elapsed: float, tmp_path: Path,
+                                                      capsys: pytest.CaptureFixture[str],
+                                                      monkeypatch: pytest.MonkeyPatch) -> None:
+    # a timeout is not a proof: whatever time it used, it never says more time will not help
+    # (the search ends early only with a proof, which is "impossible", not "timeout")
     from roomfit.solve import search as solver
 
     def gave_up(*_args: object, **_kw: object) -> solver.SolveResult:
@@ -55,4 +55,6 @@ def test_timeout_advice_follows_the_time_used(elapsed: float, advice: str, tmp_p
 
     monkeypatch.setattr(solver, "solve", gave_up)
     assert main(["solve", str(PLAN), "--time-limit", "10", "-o", str(tmp_path)]) == 3
-    assert advice in capsys.readouterr().out and list(tmp_path.iterdir()) == []
+    out = capsys.readouterr().out
+    assert "NOT proven impossible" in out and "will not help" not in out
+    assert list(tmp_path.iterdir()) == []

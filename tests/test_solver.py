@@ -23,7 +23,7 @@ from roomfit.cli import main
 from roomfit.plan.read import loads_plan, read_plan
 from roomfit.rules.catalog import load_catalog, resolve_pieces
 from roomfit.rules.sets import choose_rules, load_ruleset, rules_for
-from roomfit.solve.model import cover_rects, cross_thickness
+from roomfit.solve.rooms import cover_rects, cross_thickness
 from roomfit.solve.search import SolveOptions, SolveResult, solve
 
 PLANS = Path(__file__).resolve().parent.parent / "plans"

@@ -128,8 +128,8 @@ def explain(plan: Plan, rules: RuleSet, specs: list[PieceSpec], rooms: list[str]
     """Explain why ``specs`` cannot be placed in ``rooms`` (the plain model is infeasible)."""
     # explaining is worth a few seconds even when the search used up its time
     deadline = max(deadline, time.monotonic() + min(3.0, options.time_limit))
-    built = build_model(plan, rules, specs, rooms, options.grid, strengthen=False, assume=True,
-                        objective=False)
+    built = build_model(plan, rules, specs, rooms, options.grid, strengthen=False, relaxed=True,
+                        assume=True, objective=False)
     by_id = {s.id: s for s in specs}
     everything = list(built.groups)
     status = _check(built, options, everything, deadline)
@@ -187,7 +187,7 @@ def _smaller(plan: Plan, rules: RuleSet, specs: list[PieceSpec], rooms: list[str
                           height=t.height, zones=zones)
             trial = [alt if s.id == pid else s for s in specs]
             built = build_model(plan, rules, trial, rooms, options.grid, strengthen=False,
-                                objective=False)
+                                relaxed=True, objective=False)
             solver = cp_model.CpSolver()
             solver.parameters.num_workers = 1
             solver.parameters.random_seed = options.seed

@@ -30,20 +30,30 @@ of rooms are searched side by side, which is where a second core helps.
 
 from __future__ import annotations
 
+import math
 import threading
 import time
 from collections.abc import Callable
 from concurrent.futures import ThreadPoolExecutor
 from dataclasses import dataclass, replace
+from enum import StrEnum
+from typing import TYPE_CHECKING
 
 from ortools.sat.python import cp_model
 
-from roomfit.audit.routes import default_routines, score_routes
+from roomfit.audit.routes import RouteScores, default_routines, score_routes
+from roomfit.errors import Problem, RoomfitError
 from roomfit.plan.data import Layout, Placement, Plan, Trip
 from roomfit.rules.catalog import PieceSpec, resolve_pieces
 from roomfit.rules.sets import RuleSet
+from roomfit.solve.cuts import SoundCut, sound_cut
 from roomfit.solve.explain import Explanation, explain, precheck
-from roomfit.solve.model import Built, build_model, decode, differs, hint, room_geometry, tune
+from roomfit.solve.model import build_model, decode, differs, hint, tune
+from roomfit.solve.rooms import room_geometry
+from roomfit.solve.vars import Built
+
+if TYPE_CHECKING:
+    from roomfit.audit.check import Audit
 
 __all__ = [
     "SolveOptions",
@@ -52,12 +62,25 @@ __all__ = [
     "SolveStats",
     "SolveResult",
     "STATUSES",
+    "Status",
     "solve",
+    "MAX_REACH_MM",
     "components",
     "routines_of",
 ]
 
-STATUSES = ("found", "optimal", "impossible", "timeout")
+class Status(StrEnum):
+    """How a solve ended: candidates ``found`` (``optimal`` when every one is proven optimal),
+    proven ``impossible`` (with an explanation), or nothing found in time (``timeout``, not a
+    proof). A ``StrEnum``: each compares equal to its value."""
+
+    FOUND = "found"
+    OPTIMAL = "optimal"
+    IMPOSSIBLE = "impossible"
+    TIMEOUT = "timeout"
+
+
+STATUSES = tuple(Status)
 
 #: A later candidate must differ from every earlier one in at least this many pieces
 #: (fewer when the group has fewer movable pieces): another room, another turn (a
@@ -76,8 +99,10 @@ _WORK_PER_SECOND = 0.12
 #: Share of the time limit for finding one layout per group before more are searched.
 _FIRST_PHASE_SHARE = 0.6
 
-#: Share of a group's time the strengthened model gets to find its first layout.
-_STRENGTHENED_SHARE = 0.6
+#: Share of the time left that each stage before the last (quick cuts) gets to find a group's
+#: first layout before the next stage takes over; the relaxed model with sound cuts gets the
+#: rest (at least 0.7 ** 5 = 17 % of the time, more when stages end by running out of layouts).
+_STAGE_SHARE = 0.3
 
 #: Improving solutions of one CP-SAT run audited at most (best first).
 _AUDITS_PER_SOLVE = 4
@@ -105,7 +130,11 @@ class Candidate:
     """One verified arrangement: ``objective`` (lower is better), the proven ``bound``,
     whether it is proven ``optimal`` (under the diversity rules of earlier candidates), its
     ``rank`` (0 = best by ``route_key``, then objective) and ``route_key``, the route scorer's
-    rank key (unreachable trips, walking metres per day; ``roomfit.audit.routes``)."""
+    rank key (unreachable trips, walking metres per day; ``roomfit.audit.routes``).
+
+    ``audit`` (``roomfit.audit.check.Audit``, route widths measured) and ``routes``
+    (``roomfit.audit.routes.RouteScores``) are the results for the whole furnished plan,
+    computed once here: shells read them instead of judging the arrangement again."""
 
     layout: Layout
     objective: float
@@ -113,6 +142,8 @@ class Candidate:
     optimal: bool
     rank: int
     route_key: tuple[int, float] | None = None
+    audit: Audit | None = None
+    routes: RouteScores | None = None
 
     @property
     def gap(self) -> float:
@@ -140,10 +171,15 @@ class SolveStats:
 
 @dataclass(frozen=True)
 class SolveResult:
-    status: str
+    """The outcome: a :class:`Status`, the candidates (best first), the explanation when
+    impossible, what the search did, and ``notes`` saying why fewer candidates came back
+    than were asked (or why none)."""
+
+    status: Status | str
     candidates: tuple[Candidate, ...]
     explanation: Explanation | None
     stats: SolveStats
+    notes: tuple[str, ...] = ()
 
     @property
     def found(self) -> bool:
@@ -248,10 +284,22 @@ def routines_of(plan: Plan) -> tuple[Trip, ...]:
     return default_routines(replace(plan, furniture=placed))
 
 
-def _audit(plan: Plan, rules: RuleSet):
-    from roomfit.audit.check import audit  # the judge; imported here to keep the import graph one-way
+def _audit(plan: Plan, rules: RuleSet, widths: bool = False):
+    """The judge (imported here to keep the import graph one-way). ``widths=False`` is the
+    cheap audit: every verdict the same, the widths of passing routes not measured."""
+    from roomfit.audit.check import audit
 
-    return audit(plan, rules)
+    return audit(plan, rules, widths=widths)
+
+
+@dataclass(frozen=True)
+class _Cut:
+    """A failed layout ``where``: its sound cut, and the pieces its failures name (all the
+    movable ones when none is named) for the quick cuts."""
+
+    cut: SoundCut
+    named: tuple[str, ...]
+    where: dict[str, Placement]
 
 
 def _only(plan: Plan, ids: set[str], where: dict[str, Placement]) -> Plan:
@@ -302,8 +350,12 @@ class _Search:
         self.work_share = 1.0
         self.first: float | None = None  # seconds to this group's first valid layout
         self.built: Built | None = None
-        self.strengthen = True
-        self.cut = False  # a cut or a diversity rule was added: infeasible no longer proves much
+        self.stage = 0
+        self.stages = self._stages()
+        self.sound: list[_Cut] = []  # every sound cut so far, for the last stage
+        self.failed_rules: set[str] = set()
+        self.locked = {p.id for p in plan.furniture if p.id in self.ids and p.locked}
+        self.pinch = rules.mm("route.pinch_width") if rules.has("route.pinch_width") else 0
         self.exhausted = False
         self.quick = False  # stop a run at its first valid layout
         # a layout taken at once (quick) and not yet improved: the next run starts from it
@@ -321,24 +373,43 @@ class _Search:
         """Search until ``wanted`` layouts are found or ``budget_end``; may be called again
         with a larger ``wanted`` to resume with the same model (and its cuts).
 
-        The strengthened model goes first (it gets a share of the time to find a first
-        layout); if it finds none, the plain model gets the rest."""
+        Stages (see :meth:`_stages`), each taking over when the one before has no further
+        layout or has used its share of the time: quick cuts first, shrinking stage by stage,
+        then the relaxed model with sound cuts only (``roomfit.solve.cuts``), which runs until
+        the time is up or proves that no further layout passes."""
         if self.exhausted or len(self.found) >= wanted:
             return
-        if self.built is not None:
-            if self.provisional is not None:
-                self._improve(wanted, budget_end)
-            self._loop(wanted, budget_end, budget_end)
-            return
-        first_end = time.monotonic() + _STRENGTHENED_SHARE * max(0.0, budget_end - time.monotonic())
-        self._start(strengthen=True)
-        self._loop(wanted, budget_end, first_end)
-        if self.found:
-            return
-        self.counters.add("fallback")
-        self._start(strengthen=False)
-        if self._loop(wanted, budget_end, budget_end) == "infeasible-plain":
-            self.impossible = True
+        if self.built is not None and self.provisional is not None:
+            self._improve(wanted, budget_end)
+        last = len(self.stages) - 1
+        while len(self.found) < wanted and not self.exhausted:
+            if self.built is None:
+                self._start(0)
+            left = max(0.0, budget_end - time.monotonic())
+            stage_end = budget_end if self.stage == last else (
+                time.monotonic() + _STAGE_SHARE * left)
+            outcome = self._loop(wanted, budget_end, stage_end if not self.found else budget_end)
+            if outcome == "done":
+                return
+            if outcome == "infeasible" and self.stage == last:
+                self.exhausted = True
+                self.impossible = not self.found
+                return
+            if self.stage == last or time.monotonic() >= budget_end - 0.05:
+                return
+            if outcome == "time" and self.found:
+                return
+            self._start(self.stage + 1)
+
+    def _stages(self) -> list[tuple[bool, bool, int]]:
+        """(strengthened, relaxed, quick move in mm) per stage: the strengthened model with
+        quick cuts of half a route width, the plain model with quick cuts of half a route
+        width, a quarter, an eighth, a sixteenth (a failed layout's neighbourhood shrinks
+        until the layouts that pass near it are in reach), then the relaxed model with the
+        sound cuts alone (move 0)."""
+        step = max(self.options.grid, math.ceil(self.rules.get("route.width").exact_mm) // 2)
+        return ([(True, False, step)] + [(False, False, step >> k) for k in range(4)]
+                + [(False, True, 0)])
 
     def _improve(self, wanted: int, budget_end: float) -> None:
         """Search again from the layout taken at once in the first phase, with its fair share
@@ -358,10 +429,21 @@ class _Search:
         self.found.append(prov)
         self._forbid_near(built, [pv for pv in built.pieces if not pv.locked], prov.placements)
 
-    def _start(self, strengthen: bool) -> None:
+    def _start(self, stage: int) -> None:
+        """Build the model of ``stage`` (:meth:`_stages`) with the diversity rules of the
+        layouts found so far and the cuts of every failed layout, as this stage takes them."""
+        if stage > 0:
+            self.counters.add("fallback")
+        self.stage = stage
+        strengthen, relaxed, _ = self.stages[stage]
         self.built = build_model(self.plan, self.rules, self.specs, self.rooms, self.options.grid,
-                                 strengthen=strengthen, geo=self.geo, routines=routines_of(self.plan))
-        self.strengthen, self.cut = strengthen, False
+                                 strengthen=strengthen, relaxed=relaxed, geo=self.geo,
+                                 routines=routines_of(self.plan))
+        movable = [pv for pv in self.built.pieces if not pv.locked]
+        for f in self.found:
+            self._forbid_near(self.built, movable, f.placements)
+        for c in self.sound:
+            self._add_cut(self.built, c)
 
     def _loop(self, wanted: int, budget_end: float, first_end: float, share_of: int = 0) -> str:
         """Solve, audit and cut until ``wanted`` layouts are found. A run gets the time left
@@ -384,11 +466,14 @@ class _Search:
             seen = _Collect(self, built)
             status = solver.solve(built.model, seen)
             self.counters.add("solves")
+            if status == cp_model.MODEL_INVALID:
+                why = built.model.validate().splitlines()[0][:120]
+                raise RoomfitError(Problem(
+                    "plan", f"the placement model of {', '.join(self.rooms)} is invalid for the "
+                    f"solver ({why})", "a number of the plan is beyond what the solver can "
+                    "represent: look at the routine's trips a day and the lengths"),
+                    self.plan.name)
             if status == cp_model.INFEASIBLE:
-                if self.found:
-                    self.exhausted = True  # no further layout differs enough
-                if not self.strengthen and not self.cut and not self.found:
-                    return "infeasible-plain"
                 return "infeasible"
             if status not in (cp_model.OPTIMAL, cp_model.FEASIBLE):
                 return "time"  # a restart would lose the search done so far
@@ -402,7 +487,6 @@ class _Search:
                     accepted = _Found(where, obj, bound, optimal and k == 0)
                     break
                 self._cut(built, movable, where, result)
-                self.cut = True
             if accepted is None:
                 continue
             self.found.append(accepted)
@@ -413,24 +497,40 @@ class _Search:
                 self.provisional = accepted  # improved before the diversity rule is added
             else:
                 self._forbid_near(built, movable, accepted.placements)
-            self.cut = True
         return "done"
 
-    def _judge(self, where: dict[str, Placement]):
+    def _judge(self, where: dict[str, Placement], keep: set[str] | None = None):
+        """The cheap audit (``widths=False``) of this group's pieces placed as ``where`` says
+        (with ``keep``: only those movable pieces, and the locked ones)."""
         self.counters.add("audits")
-        return _audit(_only(self.plan, self.ids, where), self.rules)
+        ids = self.ids if keep is None else {i for i in self.ids if i in keep or i in self.locked}
+        return _audit(_only(self.plan, ids, where), self.rules)
 
     def _cut(self, built: Built, movable: list, where: dict[str, Placement], result) -> None:
-        """Forbid ``where``: one of the pieces next to a failure must move or turn."""
+        """Forbid ``where`` and the layouts the audit's verdict on it settles (a sound cut,
+        kept for every later stage); before the last stage the cut is widened to the stage's
+        quick move around the pieces next to a failure (or every movable piece when no
+        failure names one)."""
         self.counters.add("cuts")
-        names = {pid for f in result.failures for pid in f.pieces} & self.ids
-        pvs = [pv for pv in movable if pv.spec.id in names] or movable
+        ids = [pv.spec.id for pv in movable]
+        cut = sound_cut(ids, where, result.failures, lambda keep: self._judge(where, keep),
+                        self.pinch, self.rules.text("turning.shape"))
+        named = tuple(pid for pid in ids if pid in {p for f in result.failures for p in f.pieces})
+        self.sound.append(_Cut(cut, named or tuple(ids), dict(where)))
+        self.failed_rules.update(f.rule for f in result.failures)
+        pieces, move = self._add_cut(built, self.sound[-1])
         failed = sorted({f.rule for f in result.failures})
-        self._say(f"rooms {', '.join(self.rooms)}: layout failed {', '.join(failed)}; "
-                  f"one of {', '.join(pv.spec.id for pv in pvs)} must move")
-        step = max(self.options.grid, built.route // 2)
-        lits = [lit for pv in pvs for lit in differs(built.model, pv, where[pv.spec.id], step)]
-        built.model.add_bool_or(lits)
+        self._say(f"rooms {', '.join(self.rooms)}: layout failed {', '.join(failed)}; one of "
+                  f"{', '.join(pieces)} must move {move} mm or turn")
+
+    def _add_cut(self, built: Built, c: _Cut) -> tuple[tuple[str, ...], int]:
+        """Add cut ``c`` as this stage takes it; returns its pieces and move (mm)."""
+        quick = self.stages[self.stage][2]
+        pieces, move = (c.named, max(quick, c.cut.move)) if quick else (c.cut.pieces, c.cut.move)
+        by_id = {pv.spec.id: pv for pv in built.pieces}
+        built.model.add_bool_or([lit for p in pieces
+                               for lit in differs(built.model, by_id[p], c.where[p], move)])
+        return pieces, move
 
     def _forbid_near(self, built: Built, movable: list, where: dict[str, Placement]) -> None:
         """The next layout must move at least ``_DIFFER_PIECES`` pieces away from ``where``.
@@ -464,6 +564,7 @@ def solve(plan: Plan, rules: RuleSet, options: SolveOptions | None = None,
     ``progress``, when given, receives one line per event (candidate found, cut added).
     """
     options = options or SolveOptions()
+    _within_reach(plan)
     # the final audits of the combined candidates take some 0.2 s each on the samples
     clock = _Clock(options.time_limit, min(0.15 * options.time_limit, 0.25 * options.candidates))
     specs = resolve_pieces(plan, rules)
@@ -521,23 +622,66 @@ def solve(plan: Plan, rules: RuleSet, options: SolveOptions | None = None,
     for s in searches:  # more groups than lanes: take the first valid layout and move on
         s.quick = more and len(searches) > lanes
     phase(1, _FIRST_PHASE_SHARE if more else 1.0)
+    if not all(s.found or s.exhausted for s in searches):
+        phase(1, 1.0)  # a group without a layout yet keeps searching until the time is up
     if more and all(s.found for s in searches):
         for s in searches:
             s.quick = False
         phase(options.candidates, 1.0)
     for s, (rooms, group_specs) in zip(searches, groups, strict=True):
         if s.impossible:
-            expl = explain(plan, rules, group_specs, rooms, options, clock.deadline)
-            return SolveResult("impossible", (), expl, stats())
+            expl = (_exhausted(plan, s) if s.sound else
+                    explain(plan, rules, group_specs, rooms, options, clock.deadline))
+            return SolveResult(Status.IMPOSSIBLE, (), expl, stats())
     if not all(s.found for s in searches):
-        return SolveResult("timeout", (), None, stats())
-
+        return SolveResult(Status.TIMEOUT, (), None, stats())
     candidates = _combine(plan, rules, searches, options.candidates, counters)
     if not candidates:
-        return SolveResult("timeout", (), None, stats())
+        return SolveResult(Status.TIMEOUT, (), None, stats(),
+                           ("every combined arrangement failed the audit of the whole flat",))
     # "optimal" when every candidate is proven optimal (under the diversity rules)
-    status = "optimal" if all(c.optimal for c in candidates) else "found"
-    return SolveResult(status, tuple(candidates), None, stats())
+    status = Status.OPTIMAL if all(c.optimal for c in candidates) else Status.FOUND
+    return SolveResult(status, tuple(candidates), None, stats(),
+                       _fewer(plan, searches, options.candidates, len(candidates)))
+
+
+#: The solver places furniture only within this many mm of the plan's origin (1 km): the
+#: model's distance terms are bounded so, and a larger flat is a plan in the wrong unit.
+MAX_REACH_MM = 1_000_000
+
+
+def _within_reach(plan: Plan) -> None:
+    """Refuse, before any model is built, a plan whose rooms reach beyond ``MAX_REACH_MM``
+    (time and memory of building a model grow with the rooms' size)."""
+    for room in plan.rooms:
+        far = max(max(abs(x), abs(y)) for x, y in room.outline)
+        if far > MAX_REACH_MM:
+            raise RoomfitError(Problem(
+                f"rooms.{room.id}.outline", f"the room reaches {far / 1000:.4g} m from the "
+                f"plan's origin; the solver furnishes rooms within {MAX_REACH_MM // 1000} m of it",
+                "check the plan's unit (a length in mm read as m is 1000 times too long)"),
+                plan.name)
+
+
+def _fewer(plan: Plan, searches: list[_Search], wanted: int, got: int) -> tuple[str, ...]:
+    """Why fewer than ``wanted`` candidates came back (empty when all did)."""
+    if got >= wanted:
+        return ()
+    out = [f"{got} of the {wanted} arrangements asked for:"]
+    for s in searches:
+        if len(s.found) >= wanted:
+            continue
+        rooms = ", ".join(plan.room(r).label for r in s.rooms)
+        if s.exhausted:
+            need = min(_DIFFER_PIECES, len([p for p in s.specs if p.id not in s.locked]))
+            out.append(f"the {rooms} {'has' if len(s.rooms) == 1 else 'have'} no further "
+                       f"arrangement that passes every rule and differs from the earlier ones in "
+                       f"at least {need} piece{'s' if need != 1 else ''} (moved {_MOVE} mm or "
+                       f"more, turned, or in another room): proven, the search ran out of layouts")
+        else:
+            out.append(f"the time limit ended the search for more in the {rooms} "
+                       f"({len(s.found)} found there)")
+    return tuple(out)
 
 
 def _combine(plan: Plan, rules: RuleSet, searches: list[_Search], wanted: int,
@@ -554,16 +698,32 @@ def _combine(plan: Plan, rules: RuleSet, searches: list[_Search], wanted: int,
         layout = tuple((p.id, where.get(p.id, p.placement)) for p in plan.furniture
                        if where.get(p.id, p.placement) is not None)
         counters.add("audits")
-        if not _audit(plan.with_layout(layout), rules).passed:
+        furnished = plan.with_layout(layout)
+        verdict = _audit(furnished, rules, widths=True)
+        if not verdict.passed:
             continue
-        key = score_routes(plan.with_layout(layout), rules).rank_key
+        routes = score_routes(furnished, rules)
         out.append(Candidate(layout, sum(f.objective for f in picks), sum(f.bound for f in picks),
-                             all(f.optimal for f in picks), len(out), key))
+                             all(f.optimal for f in picks), len(out), routes.rank_key, verdict,
+                             routes))
     # ranked as `roomfit compare` ranks plans: fewer unreachable trips, then fewer walking
     # metres per day; the objective breaks ties
     out.sort(key=lambda c: (c.route_key, c.objective))
     return [replace(c, rank=i) for i, c in enumerate(out)]
 
+
+
+def _exhausted(plan: Plan, s: _Search) -> Explanation:
+    """Why nothing fits when every layout of the relaxed model failed the audit."""
+    rooms = ", ".join(plan.room(r).label for r in s.rooms)
+    pieces = tuple(dict.fromkeys(p for c in s.sound for p in c.cut.pieces))
+    rules = tuple(sorted(s.failed_rules))
+    return Explanation(
+        f"Every arrangement of the {rooms} that keeps the pieces apart and their clear floor "
+        f"free was tried against the rules and fails ({len(s.sound)} checked, each cut off with "
+        f"the layouts that fail for the same reason): {', '.join(rules)}. (Positions in whole "
+        f"millimetres; angled walls covered on a {s.options.grid} mm grid.)",
+        pieces, rules, ())
 
 
 def _bare_faults(plan: Plan, rules: RuleSet, counters: _Counters) -> Explanation | None:

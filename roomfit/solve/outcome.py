@@ -1,0 +1,48 @@
+"""One wording of a solve's outcome, for every shell (the CLI summary and the page).
+
+The three outcomes stay distinct: arrangements found; proven impossible (with the reason in
+plain words and the fixes that were tested); nothing found within the time limit, which is
+*not* a proof. When fewer candidates come back than were asked, the reason the search gives
+(``SolveResult.notes``) is part of the wording.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Any
+
+__all__ = ["Outcome", "describe"]
+
+
+@dataclass(frozen=True)
+class Outcome:
+    """How a solve ended, in words: ``level`` is ``success``, ``warning`` or ``error``; the
+    ``headline`` is one sentence, ``details`` the tested fixes and notes."""
+
+    level: str
+    headline: str
+    details: tuple[str, ...] = ()
+
+
+def describe(result: Any, time_limit: float) -> Outcome:
+    """Plain words for a ``roomfit.solve.search.SolveResult``.
+
+    >>> from roomfit.solve.search import SolveResult, SolveStats
+    >>> describe(SolveResult("timeout", (), None, SolveStats()), 20).headline[:40]
+    'No arrangement that passes every rule wa'
+    """
+    n = len(result.candidates)
+    ex = result.explanation
+    notes = tuple(getattr(result, "notes", ()))
+    fixes = tuple(f"Try: {f}" for f in ex.fixes) if ex is not None else ()
+    plural = "s" if n != 1 else ""
+    if result.status in ("found", "optimal") and n:
+        best = (" (each the best possible for the scoring used, among arrangements that differ "
+                "enough from the ones before)" if result.status == "optimal" else "")
+        return Outcome("success", f"{n} arrangement{plural} found{best}.", notes)
+    if result.status == "impossible":
+        summary = ex.summary if ex is not None else "The furniture cannot fit under these rules."
+        return Outcome("error", f"No arrangement exists: {summary}", fixes)
+    return Outcome("warning", f"No arrangement that passes every rule was found within "
+                   f"{time_limit:g} s. This is NOT proven impossible: allow more time, or "
+                   "remove or lock a piece and try again.", fixes + notes)
