@@ -28,7 +28,8 @@ STAGE = {
     "plan.floordata": 1, "plan.ifc_read": 3, "plan.floor_base": 3, "plan.floor_doors": 3,
     "plan.floor_items": 3, "plan.floor": 3, "plan.ifc_import": 3,
     "audit.check": 4, "audit.routes": 4,
-    "solve": 5, "solve.model": 5, "solve.explain": 5, "solve.search": 6,
+    "solve": 5, "solve.rooms": 5, "solve.vars": 5, "solve.terms": 5, "solve.model": 5,
+    "solve.cuts": 5, "solve.explain": 5, "solve.search": 6, "solve.outcome": 6,
     "present": 7, "present.draw": 7, "present.export": 7, "present.compare": 7,
     "present.report": 8,
     "bench": 9, "bench.instances": 9, "bench.baseline": 9, "bench.run": 9, "bench.__main__": 9,
@@ -38,7 +39,7 @@ STAGE = {
 FORBIDDEN = {
     *((s, f"plan.{m}") for s in ("solve.search", "solve.model", "solve.explain")
       for m in ("fields", "openings", "read", "write")),
-    ("solve.model", "audit.check"),
+    *((f"solve.{s}", "audit.check") for s in ("model", "rooms", "vars", "terms", "cuts")),
     ("audit.check", "present.draw"), ("audit.routes", "present.draw"),
 }
 
