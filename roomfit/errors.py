@@ -35,7 +35,13 @@ class Problem:
         head = f"{where}: " if where else ""
         field = f"{self.field}: " if self.field else ""
         tail = f" (hint: {self.hint})" if self.hint else ""
-        return f"{head}{field}{self.message}{tail}"
+        return _printable(f"{head}{field}{self.message}{tail}")
+
+
+def _printable(text: str) -> str:
+    """``text`` with control characters shown as escapes (``\\x1b``), so a hostile key or
+    file name cannot drive the terminal that prints the message."""
+    return "".join(ch if ch.isprintable() or ch == " " else ascii(ch)[1:-1] for ch in text)
 
 
 class RoomfitError(Exception):

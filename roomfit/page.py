@@ -77,13 +77,9 @@ def sample_files(folder: str | Path) -> list[Path]:
 
 
 def plan_from_upload(name: str, data: bytes) -> Plan:
-    """Read an uploaded plan file's bytes; problems name the uploaded file's ``name``."""
-    try:
-        text = data.decode("utf-8")
-    except UnicodeDecodeError as e:
-        raise PlanError(Problem("", f"not UTF-8 text (byte {e.start})",
-                                "upload a roomfit plan file (.toml, plain text)"), name) from None
-    return loads_plan(text, name)
+    """Read an uploaded plan file's bytes; problems name the uploaded file's ``name``. The
+    reader's limits apply (size first, before the bytes are decoded)."""
+    return loads_plan(data, name)
 
 
 def error_lines(err: RoomfitError) -> list[str]:

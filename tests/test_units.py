@@ -36,3 +36,45 @@ def test_format_length():
     assert format_length(1524, "in") == "60 in"
     assert format_length(2500, "m") == "2.5 m"
     assert format_length(915) == "915 mm"
+
+
+# Lengths that were misread by adding up loose numbers are refused with the accepted forms;
+# feet and inches with both units are exact (1 ft = 12 in = 304.8 mm, 1959 agreement).
+@pytest.mark.parametrize("text, why", [
+    ("2'8", "inches after feet need their unit"),
+    ("5' 10", "inches after feet need their unit"),
+    ("1 500", "several numbers"),
+    ("3 6", "several numbers"),
+    ("900mm900", "several numbers"),
+    ("-3 ft 6 in", "sign cannot stand before feet and inches"),
+    ("5 ft 14 in", "12 inches or more"),
+    ("1/0 in", "not a proper fraction"),
+    ("1e3", ""),
+    ("9" * 5000, "too long"),
+])
+def test_lengths_that_cannot_be_read_exactly_are_refused(text, why):
+    with pytest.raises(UnitError) as info:
+        parse_length(text, "mm", "furniture[0].width")
+    problem = info.value.problems[0]
+    assert problem.field == "furniture[0].width" and why in problem.message
+    assert '"3 ft 6 in"' in problem.hint and '"90 cm"' in problem.hint  # the accepted forms
+
+
+@pytest.mark.parametrize("text, mm", [
+    ("2'8\"", 813),          # 32 in = 812.8 mm
+    ("5' 10\"", 1778),       # 70 in = 1778 mm
+    ("2 ft 8 in", 813),
+    ("32 1/2 in", 826),      # 32.5 in = 825.5 mm, half away from zero
+    ("2 ft 7 1/2 in", 800),  # 31.5 in = 800.1 mm
+    ("-42 in", -1067),       # a negative length is one number with its unit
+    ("  90   cm ", 900),
+    ("+3 ft", 914),
+])
+def test_exact_forms(text, mm):
+    assert parse_length(text) == mm
+
+
+@pytest.mark.parametrize("value", [1e306, 10**4000, "1000001", 1e20])
+def test_magnitudes_beyond_a_kilometre_are_refused(value):
+    with pytest.raises(UnitError, match="beyond the largest length"):
+        parse_length(value, "mm", "rooms[0].outline[1][0]")

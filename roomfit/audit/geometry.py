@@ -248,7 +248,6 @@ def door_shape(plan: Plan, door: Door, rules: RuleSet) -> DoorShape:
     ``door.approach_other`` deep. Sliding leaves and doorways use ``door.approach_other`` on
     both sides (2010 ADA Table 404.2.4.2 asks the same depth on both sides of a sliding door).
     """
-    polys = room_polygons(plan)
     at, u, n0 = _door_frame(plan, door)
     half = door.width / 2
     opening = LineString([(at[0] - u[0] * half, at[1] - u[1] * half),
@@ -276,7 +275,7 @@ def door_shape(plan: Plan, door: Door, rules: RuleSet) -> DoorShape:
             if other_depth == 0:
                 continue
             zone = asked[rid] = _rect_from(at, u, n, half, half, other_depth)
-        approach[rid] = zone.intersection(polys[rid])
+        approach[rid] = zone.intersection(room_polygon(plan.room(rid)))  # its own rooms only
     return DoorShape(door, opening, inward, swing, approach, asked)
 
 

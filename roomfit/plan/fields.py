@@ -8,17 +8,19 @@ user sees them all at once.
 from __future__ import annotations
 
 import re
+from dataclasses import replace
 from typing import Any
 
 from shapely import Polygon
 from shapely.validation import explain_validity
 
 from roomfit.errors import Problem, RoomfitError
+from roomfit.plan.limits import MAX_FLAT_MM, check_text
 from roomfit.plan.units import parse_length
 
 __all__ = ["FieldReader", "kind_of", "array_items", "known_ids"]
 
-_ID = re.compile(r"^[A-Za-z0-9][A-Za-z0-9_.-]*$")
+_ID = re.compile(r"[A-Za-z0-9][A-Za-z0-9_.-]{0,99}")
 
 
 class FieldReader:
@@ -36,9 +38,9 @@ class FieldReader:
             self.add(field, f"expected a table, found {kind_of(raw)}")
             return None
         for k in sorted(set(raw) - allowed):
-            self.add(f"{field}.{k}", "unknown key", f"allowed keys: {', '.join(sorted(allowed))}")
+            self.add(_at(field, k), "unknown key", f"allowed keys: {', '.join(sorted(allowed))}")
         for k in sorted(required - set(raw)):
-            self.add(f"{field}.{k}", "missing key")
+            self.add(_at(field, k), "missing key")
         return raw
 
     def text(self, raw: dict, key: str, field: str, default: str | None = None) -> str | None:
@@ -46,31 +48,42 @@ class FieldReader:
             return default
         v = raw[key]
         if not isinstance(v, str):
-            self.add(f"{field}.{key}", f"expected text, found {kind_of(v)}")
+            self.add(_at(field, key), f"expected text, found {kind_of(v)}")
+            return None
+        wrong = check_text(v)
+        if wrong is not None:
+            self.add(_at(field, key), f"the text {wrong}",
+                     "remove control characters (tab and line breaks are allowed)")
             return None
         return v
 
     def ident(self, raw: dict, key: str, field: str) -> str | None:
         v = self.text(raw, key, field)
-        if v is not None and not _ID.match(v):
-            self.add(f"{field}.{key}", f"id {v!r} must start with a letter or digit and use only "
-                     "letters, digits, '-', '_' and '.'")
+        if v is not None and not _ID.fullmatch(v):
+            self.add(_at(field, key), f"id {v!r} must start with a letter or digit and use only "
+                     "letters, digits, '-', '_' and '.' (at most 100 characters)")
             return None
         return v
 
-    def length(self, raw: dict, key: str, field: str, low: int | None = 1) -> int | None:
+    def length(self, raw: dict, key: str, field: str, low: int | None = 1,
+               high: int | None = MAX_FLAT_MM) -> int | None:
         """A length in mm; ``low`` is the least value allowed (1: positive, 0: not negative,
-        None: any, e.g. a coordinate)."""
+        None: any, e.g. a coordinate), ``high`` the largest (None: any a coordinate may be)."""
         if key not in raw:
             return None
         try:
-            v = parse_length(raw[key], self.unit, f"{field}.{key}")
+            v = parse_length(raw[key], self.unit, _at(field, key))
         except RoomfitError as e:
-            self.problems.extend(e.problems)
+            allowed = f"allowed: {max(low or 0, 0)} to {high} mm" if high is not None else ""
+            self.problems.extend(replace(p, hint=p.hint or allowed) for p in e.problems)
             return None
         if low is not None and v < low:
             need = "greater than 0" if low == 1 else f"at least {low} mm"
-            self.add(f"{field}.{key}", f"must be {need}, found {v} mm")
+            self.add(_at(field, key), f"must be {need}, found {v} mm")
+            return None
+        if high is not None and v > high:
+            self.add(_at(field, key), f"must be at most {high} mm, found {v} mm",
+                     f"allowed: {max(low or 0, 0)} to {high} mm")
             return None
         return v
 
@@ -89,7 +102,7 @@ class FieldReader:
         if key not in raw:
             return None
         pts_raw = raw[key]
-        f = f"{field}.{key}"
+        f = _at(field, key)
         if not isinstance(pts_raw, list) or len(pts_raw) < 3:
             self.add(f, "expected a list of at least 3 points [[x, y], ...]")
             return None
@@ -108,6 +121,11 @@ class FieldReader:
             self.add(f, "outline encloses no area")
             return None
         return tuple(pts_ok)
+
+
+def _at(field: str, key: str) -> str:
+    """The path of ``key`` inside ``field`` (``rooms[0].id``; a top-level key alone)."""
+    return f"{field}.{key}" if field else key
 
 
 def kind_of(v: Any) -> str:

@@ -9,14 +9,13 @@ problem before raising one :class:`PlanError` whose problems each name the field
 
 from __future__ import annotations
 
-import math
 import re
 import tomllib
 from functools import cache
 from pathlib import Path
 from typing import Any
 
-from shapely import Polygon
+from shapely import MultiPolygon, Polygon, STRtree
 
 from roomfit.errors import PlanError, Problem, RoomfitError
 from roomfit.plan.data import (
@@ -33,6 +32,14 @@ from roomfit.plan.data import (
     Trip,
 )
 from roomfit.plan.fields import FieldReader, array_items, kind_of, known_ids
+from roomfit.plan.limits import (
+    MAX_DEPTH,
+    MAX_FILE_BYTES,
+    MAX_FLAT_MM,
+    MAX_OVERRIDE_MM,
+    MAX_PER_DAY,
+    check_shape,
+)
 from roomfit.plan.openings import openings_apart, read_doors, read_windows
 from roomfit.plan.units import UNITS
 from roomfit.rules.catalog import load_catalog
@@ -51,6 +58,7 @@ _RULE_KEYS = {"set", "overrides"}
 _TRIP_KEYS = {"from", "to", "per_day", "label", "night"}
 _RESERVED = {OUTSIDE, "entrance"}
 
+
 def _read_rooms(r: FieldReader, data: dict) -> list[Room]:
     rooms = []
     for f, raw in array_items(r, data, "rooms"):
@@ -64,16 +72,34 @@ def _read_rooms(r: FieldReader, data: dict) -> list[Room]:
             rooms.append(Room(rid, label, use, outline))
     if not rooms and not r.problems:
         r.add("rooms", "a plan needs at least one room", "add a [[rooms]] table")
-    polys = [(i, rm, Polygon(rm.outline)) for i, rm in enumerate(rooms)]
-    for a in range(len(polys)):
-        for b in range(a + 1, len(polys)):
-            ov = polys[a][2].intersection(polys[b][2])
+    _rooms_apart(r, data, rooms)
+    return rooms
+
+
+def _rooms_apart(r: FieldReader, data: dict, rooms: list[Room]) -> None:
+    """Report rooms that overlap (more than 1 mm2) and a flat wider than
+    :data:`~roomfit.plan.limits.MAX_FLAT_MM`. Only rooms whose boxes meet are intersected,
+    so a plan of many rooms costs about one test per neighbour, not one per pair."""
+    raw = data.get("rooms")
+    fields = {t.get("id"): f"rooms[{i}]" for i, t in enumerate(raw if isinstance(raw, list) else [])
+              if isinstance(t, dict) and isinstance(t.get("id"), str)}
+    polys = [Polygon(rm.outline) for rm in rooms]
+    if polys:
+        x0, y0, x1, y1 = MultiPolygon(polys).bounds
+        if max(x1 - x0, y1 - y0) > MAX_FLAT_MM:
+            r.add("rooms", f"the rooms span {x1 - x0:.0f} x {y1 - y0:.0f} mm; a plan may span "
+                  f"at most {MAX_FLAT_MM} mm each way", "check the units and the coordinates")
+    tree = STRtree(polys)
+    for b, pb in enumerate(polys):
+        for a in sorted(int(i) for i in tree.query(pb)):
+            if a >= b:
+                break
+            ov = polys[a].intersection(pb)
             if ov.area > 1.0:
                 c = ov.representative_point()
-                r.add(f"rooms[{polys[b][0]}].outline",
-                      f"room {polys[b][1].id!r} overlaps room {polys[a][1].id!r} by "
+                r.add(f"{fields.get(rooms[b].id, 'rooms')}.outline",
+                      f"room {rooms[b].id!r} overlaps room {rooms[a].id!r} by "
                       f"{ov.area / 1e6:.3f} m2 around ({c.x:.0f}, {c.y:.0f})")
-    return rooms
 
 
 def _read_fixtures(r: FieldReader, data: dict, rooms: dict[str, Room]) -> list[Fixture]:
@@ -183,7 +209,7 @@ def _read_placement(r: FieldReader, raw: Any, f: str, allowed: list[str],
         return None
     x, y = r.length(t, "x", f, low=None), r.length(t, "y", f, low=None)
     rot = t.get("rotation")
-    if "rotation" in t and (isinstance(rot, bool) or rot not in ROTATIONS):
+    if "rotation" in t and (type(rot) is not int or rot not in ROTATIONS):
         r.add(f"{f}.rotation", f"expected one of {', '.join(map(str, ROTATIONS))} degrees, "
               f"found {rot!r}")
         return None
@@ -214,7 +240,7 @@ def _read_rules(r: FieldReader, data: dict) -> RuleChoice:
             if k == "turning.shape":
                 overrides[k] = v
             else:
-                mm = r.length(over_raw, k, "rules.overrides", low=0)
+                mm = r.length(over_raw, k, "rules.overrides", low=0, high=MAX_OVERRIDE_MM)
                 if mm is not None:
                     overrides[k] = mm
     try:
@@ -240,8 +266,9 @@ def _read_routines(r: FieldReader, data: dict) -> list[Trip]:
         label = r.text(t, "label", f, default="")
         per = t.get("per_day")
         if "per_day" in t and (isinstance(per, bool) or not isinstance(per, int | float)
-                               or not per > 0 or per == math.inf):
-            r.add(f"{f}.per_day", f"expected a number of trips greater than 0, found {per!r}")
+                               or not 0 < per <= MAX_PER_DAY):
+            r.add(f"{f}.per_day", f"expected a number of trips greater than 0, found {per!r}",
+                  f"allowed: more than 0 and at most {MAX_PER_DAY} a day")
             per = None
         night = t.get("night", False)
         if not isinstance(night, bool):
@@ -253,21 +280,49 @@ def _read_routines(r: FieldReader, data: dict) -> list[Trip]:
     return out
 
 
-def loads_plan(text: str, source: str = "<plan>") -> Plan:
-    """Parse and validate plan-file text; raise :class:`PlanError` listing every problem."""
+def _parse_toml(text: str | bytes, source: str) -> dict[str, Any]:
+    """The TOML tree of plan-file text or bytes (UTF-8, a byte-order mark allowed), refused
+    beyond :data:`~roomfit.plan.limits.MAX_FILE_BYTES` or nested too deep."""
+    size = len(text) if isinstance(text, bytes) else len(text.encode("utf-8", "replace"))
+    if size > MAX_FILE_BYTES:
+        raise PlanError(Problem("", f"larger than {MAX_FILE_BYTES // 1024} KiB, the largest plan "
+                                "file roomfit reads", "see the limits in docs/plan-format.md"),
+                        source)
+    if isinstance(text, bytes):
+        try:
+            text = text.decode("utf-8")
+        except UnicodeDecodeError as e:
+            raise PlanError(Problem("", f"not UTF-8 text (byte {e.start})",
+                                    "save the plan as UTF-8 plain text (.toml)"), source) from None
     try:
-        data = tomllib.loads(text)
+        return tomllib.loads(text.removeprefix("\ufeff"))
     except tomllib.TOMLDecodeError as e:
         m = re.search(r"\(at line (\d+), column (\d+)\)", str(e))
         line, col = (int(m.group(1)), int(m.group(2))) if m else (None, None)
         msg = re.sub(r"\s*\(at line \d+, column \d+\)", "", str(e)) or "invalid TOML"
         raise PlanError(Problem("", f"not a valid TOML file: {msg}", line=line, column=col),
                         source) from None
+    except RecursionError:
+        raise PlanError(Problem("", f"nested more than {MAX_DEPTH} levels deep",
+                                "a plan needs 4 levels; see docs/plan-format.md"), source) from None
+    except ValueError:  # an integer too long to convert (Python's 4300-digit limit)
+        m = re.search(r"[0-9_]{4000,}", text)
+        line = text.count("\n", 0, m.start()) + 1 if m else None
+        raise PlanError(Problem("", "a number is too long to read (thousands of digits)",
+                                "lengths have at most 10 digits", line=line), source) from None
+
+
+def loads_plan(text: str | bytes, source: str = "<plan>") -> Plan:
+    """Parse and validate plan-file text (or UTF-8 bytes, as uploaded); raise
+    :class:`PlanError` listing every problem."""
+    data = _parse_toml(text, source)
     version = data.get(VERSION_KEY)
-    if version != FORMAT_VERSION:
-        found = "missing" if version is None else f"found {version!r}"
+    if type(version) is not int or version != FORMAT_VERSION:  # not true, not 1.0
+        found = ("missing" if version is None else
+                 f"found {str(version).lower() if isinstance(version, bool) else repr(version)}")
         raise PlanError(Problem(VERSION_KEY, f"expected format version {FORMAT_VERSION}, {found}",
                                 f"start the file with {VERSION_KEY} = {FORMAT_VERSION}"), source)
+    check_shape(data, source)
     unit = data.get("units", "mm")
     r = FieldReader("mm")
     if unit not in UNITS:
@@ -320,15 +375,14 @@ def read_plan(path: str | Path) -> Plan:
     """Read and validate a plan file; every problem names ``path`` and the field."""
     p = Path(path)
     try:
-        text = p.read_text(encoding="utf-8")
+        with p.open("rb") as fh:  # no more than the limit: a device or a huge file stops here
+            raw = fh.read(MAX_FILE_BYTES + 1)
     except FileNotFoundError:
         raise PlanError(Problem("", "no such file"), str(p)) from None
     except IsADirectoryError:
         raise PlanError(Problem("", "is a folder, not a plan file"), str(p)) from None
-    except UnicodeDecodeError as e:
-        raise PlanError(Problem("", f"not UTF-8 text (byte {e.start})"), str(p)) from None
     except OSError as e:
         raise PlanError(Problem("", f"cannot read: {e.strerror}"), str(p)) from None
-    return loads_plan(text, str(p))
+    return loads_plan(raw, str(p))
 
 

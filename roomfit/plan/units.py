@@ -21,8 +21,9 @@ import re
 from fractions import Fraction
 
 from roomfit.errors import Problem, UnitError
+from roomfit.plan.limits import MAX_COORDINATE_MM
 
-__all__ = ["UNITS", "MM_PER", "parse_length", "to_unit", "format_length", "inches"]
+__all__ = ["UNITS", "MM_PER", "FORMS", "parse_length", "to_unit", "format_length", "inches"]
 
 #: Millimetres per unit, exact.
 MM_PER: dict[str, Fraction] = {
@@ -34,7 +35,22 @@ MM_PER: dict[str, Fraction] = {
 }
 UNITS = tuple(MM_PER)
 
-_PART = re.compile(r"\s*(-?\d+(?:\.\d+)?)\s*(mm|cm|m|in|ft|\"|')?\s*")
+#: A number as a plan writes it: digits with an optional decimal part (no exponent, no
+#: thousands separator), short enough to stay exact.
+_NUM = r"\d{1,10}(?:\.\d{1,10})?"
+#: Inches may also be a fraction as on a tape measure: ``1/2`` or ``32 1/2``.
+_INCHES = rf"(?:\d{{1,6}}\s+)?\d{{1,4}}/\d{{1,4}}|{_NUM}"
+_FT, _IN = r"(?:ft|')", r'(?:in|")'
+#: One number with an optional unit (the only form that may carry a sign).
+_SINGLE = re.compile(rf"(?P<sign>[-+]?)\s*(?P<num>{_NUM})\s*(?P<unit>mm|cm|m|in|ft|\"|')?")
+#: Inches with a fraction: ``32 1/2 in``, ``-1/4"``.
+_FRACTION = re.compile(rf"(?P<sign>[-+]?)\s*(?P<inches>{_INCHES})\s*{_IN}")
+#: Feet and inches, both with their unit: ``3 ft 6 in``, ``3'6"``, ``2 ft 7 1/2 in``.
+_FEET_INCHES = re.compile(rf"(?P<feet>\d{{1,6}})\s*{_FT}\s*(?P<inches>{_INCHES})\s*{_IN}")
+#: The accepted forms, shown with every length that cannot be read.
+FORMS = ('a number in the plan\'s unit ("900", "-300"), or one unit: "90 cm", "2.5 m", '
+         '"36 in", "32 1/2 in", "3 ft"; feet and inches with both units: "3 ft 6 in", '
+         '"3\'6\"", "2 ft 7 1/2 in"')
 
 
 def _round_half_away(x: Fraction) -> int:
@@ -51,9 +67,10 @@ def inches(value: float) -> float:
 def parse_length(value: object, unit: str = "mm", field: str = "") -> int:
     """Parse a length to integer millimetres.
 
-    ``value`` is a number (in ``unit``) or a string such as ``"900"``, ``"90 cm"``,
-    ``"2.5m"``, ``"36 in"``, ``"3 ft 6 in"`` or ``3'6"``. Raises :class:`UnitError` naming
-    ``field`` when the value cannot be read.
+    ``value`` is a number (in ``unit``) or a string in one of the :data:`FORMS`: ``"900"``,
+    ``"90 cm"``, ``"2.5m"``, ``"36 in"``, ``"32 1/2 in"``, ``"3 ft 6 in"`` or ``3'6"``.
+    Raises :class:`UnitError` naming ``field`` when the value cannot be read exactly or lies
+    beyond :data:`~roomfit.plan.limits.MAX_COORDINATE_MM`.
     """
     if unit not in MM_PER:
         raise UnitError(Problem(field, f"unknown unit {unit!r}", f"use one of {', '.join(UNITS)}"))
@@ -62,25 +79,77 @@ def parse_length(value: object, unit: str = "mm", field: str = "") -> int:
     if isinstance(value, int | float):
         if value != value or value in (float("inf"), float("-inf")):
             raise UnitError(Problem(field, f"expected a finite length, found {value!r}"))
-        return _round_half_away(Fraction(str(value)) * MM_PER[unit])
+        if abs(value) > MAX_COORDINATE_MM * 1000:  # refused before exact arithmetic on it
+            return _limited(MAX_COORDINATE_MM + 1, value, field)
+        return _limited(_round_half_away(Fraction(str(value)) * MM_PER[unit]), value, field)
     if not isinstance(value, str):
         raise UnitError(Problem(field, f"expected a length, found {type(value).__name__}"))
-    text = value.strip()
-    pos, total, parts = 0, Fraction(0), 0
-    while pos < len(text):
-        m = _PART.match(text, pos)
-        if not m or m.end() == pos:
-            raise UnitError(
-                Problem(field, f"cannot read length {value!r}", 'write e.g. "900", "90 cm", "36 in"')
-            )
-        num, suffix = m.group(1), m.group(2)
-        u = {'"': "in", "'": "ft"}.get(suffix or "", suffix or unit)
-        total += Fraction(num) * MM_PER[u]
-        parts += 1
-        pos = m.end()
-    if parts == 0:
-        raise UnitError(Problem(field, "empty length"))
-    return _round_half_away(total)
+    return _limited(_parse_text(value, unit, field), value, field)
+
+
+def _limited(mm: int, value: object, field: str) -> int:
+    if abs(mm) > MAX_COORDINATE_MM:
+        raise UnitError(Problem(field, f"{_shown(value)} is beyond the largest length roomfit reads "
+                                f"({MAX_COORDINATE_MM // 1000} m either way)"))
+    return mm
+
+
+def _shown(value: object) -> str:
+    """``value`` as a message quotes it: its repr, cut short when long."""
+    text = repr(value)
+    return text if len(text) <= 40 else f"{text[:36]}..."
+
+
+def _fraction(text: str) -> Fraction:
+    """``"32 1/2"`` -> 65/2, ``"1/4"`` -> 1/4, ``"7.5"`` -> 15/2 (exact)."""
+    whole, _, frac = text.rpartition(" ") if "/" in text else ("", "", text)
+    if "/" not in frac:
+        return Fraction(frac)
+    num, den = frac.split("/")
+    if int(den) == 0 or int(num) >= int(den):
+        raise ValueError(f"{frac} is not a proper fraction")
+    return Fraction(int(whole or 0)) + Fraction(int(num), int(den))
+
+
+def _parse_text(value: str, unit: str, field: str) -> int:
+    """A length written as text, to mm; refuses what it cannot read exactly (see
+    :data:`FORMS`): no sums of loose numbers (``"1 500"``, ``"900mm900"``), no inches without
+    their unit after feet (``"2'8"``), no sign before feet and inches (``"-3 ft 6 in"``)."""
+    text = " ".join(value.split())
+    if len(text) > 40 or re.search(r"\d{11}", text):
+        raise UnitError(Problem(field, f"cannot read length {_shown(value)}: too long; a length "
+                                "has at most 10 digits before and after the point", FORMS))
+    try:
+        if m := _SINGLE.fullmatch(text):
+            u = {'"': "in", "'": "ft"}.get(m["unit"] or "", m["unit"] or unit)
+            mm = Fraction(m["num"]) * MM_PER[u]
+            return _round_half_away(-mm if m["sign"] == "-" else mm)
+        if m := _FRACTION.fullmatch(text):
+            mm = _fraction(m["inches"]) * MM_PER["in"]
+            return _round_half_away(-mm if m["sign"] == "-" else mm)
+        if m := _FEET_INCHES.fullmatch(text):
+            inch = _fraction(m["inches"])
+            if inch >= 12:
+                raise ValueError(f"{m['inches']} in after feet is 12 inches or more")
+            return _round_half_away(int(m["feet"]) * MM_PER["ft"] + inch * MM_PER["in"])
+    except ValueError as e:
+        raise UnitError(Problem(field, f"cannot read length {_shown(value)}: {e}", FORMS)) from None
+    raise UnitError(Problem(field, f"cannot read length {_shown(value)}{_why(text)}", FORMS))
+
+
+def _why(text: str) -> str:
+    """Why ``text`` is refused, where a common slip explains it."""
+    if not text:
+        return ": it is empty"
+    if re.fullmatch(rf"[-+]?\s*\d+\s*{_FT}\s*{_NUM}", text):
+        return ": the inches after feet need their unit"
+    if text[0] in "-+" and re.search(_FT, text) and re.search(_IN, text):
+        return ": a sign cannot stand before feet and inches; write the length in inches"
+    tokens = re.findall(r"\d+(?:\.\d+)?|[a-z]+|\S", text.lstrip("-+"))
+    numbers = [t for t in tokens if t[0].isdigit()]
+    if len(numbers) > 1 and all(t[0].isdigit() or t in MM_PER or t in "'\"" for t in tokens):
+        return ": it holds several numbers, and only feet followed by inches may be combined"
+    return ""
 
 
 def to_unit(mm: int | float, unit: str) -> float:
