@@ -176,6 +176,23 @@ def test_conversation_distance(dist: int, ok: bool) -> None:
     assert c.ok is ok and c.measured == pytest.approx(dist, abs=0.1)
 
 
+def test_an_armchair_beside_the_sofa_talks_with_it() -> None:
+    # an L: sofa facing south, armchair west of it facing east, level with the sofa
+    sofa = _piece("sofa", "sofa-3", 1933, 4110, 180)
+    chair = _piece("ac", "armchair", 1000, 4110, 270)
+    cs = [c for c in _measure(sofa, chair) if c.rule == "group.talk_turn"]
+    assert len(cs) == 2 and all(c.ok for c in cs)
+
+
+def test_free_depth_ignores_pieces_that_only_touch_a_corner() -> None:
+    # a sofa whose corner touches the table's corner does not block the chairs' side
+    table = _piece("t", "dining-table-4", 2000, 1500)       # south edge y = 1500, x 2000..3220
+    sofa = _piece("sofa", "sofa-3", 3220, 610)               # corner at (3220, 1500)
+    south = next(c for c in _measure(table, sofa) if c.rule == "group.dining"
+                 and "south" in c.label)
+    assert south.measured == 1500
+
+
 def test_a_seat_turned_away_is_out_of_the_conversation() -> None:
     sofa = _piece("sofa", "sofa-3", 1933, 4110, 180)
     chair = _piece("ac", "armchair", 2575, 1000, 180)  # faces south, away from the sofa

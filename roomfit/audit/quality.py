@@ -17,7 +17,9 @@ carries the measured value, its target and the target's source:
 - ``group.desk_chair``: the desk's chair has its depth free; ``group.desk_height``: the top
   is at a height that leaves knee space;
 - ``group.talk`` / ``group.talk_turn``: seats of a conversation group within speaking
-  distance of another seat and turned towards it;
+  distance of another seat (front middle to front middle) and turned towards it: the other
+  seat's front not behind this seat's back (angle from the back middle to it, off the
+  seat's axis, at most ``talk.turn``);
 - ``group.rug``: a rug lies under the centre of the group of its room.
 
 Preferences (``Kind.PREFERENCE``) are measured the same way: ``pref.wall``, a piece of a
@@ -40,7 +42,6 @@ from importlib import resources
 
 from shapely import LineString, Point, Polygon, box
 from shapely.geometry.base import BaseGeometry
-from shapely.ops import unary_union
 
 from roomfit.audit.geometry import (
     fixture_polygon,
@@ -298,8 +299,8 @@ def _free_depth(ctx: _Ctx, pid: str, side: str) -> float:
     blocks: list[BaseGeometry] = [band.difference(room)] if room is not None else []
     blocks += [fixture_polygon(f) for f in ctx.plan.fixtures]
     blocks += [q.shape for qid, q in ctx.placed.items() if qid != pid and not lies_flat(q.spec)]
-    hit = unary_union(blocks).intersection(band)
-    return float(_LOOK) if hit.is_empty or hit.area < 1.0 else float(seg.distance(hit))
+    hits = [h for h in (b.intersection(band) for b in blocks) if h.area >= 1.0]  # not touches
+    return min((float(seg.distance(h)) for h in hits), default=float(_LOOK))
 
 
 # --------------------------------------------------------------------------- the rules
@@ -474,7 +475,8 @@ def _talk(ctx: _Ctx) -> list[GroupCheck]:
                              key=lambda qo: math.dist(a, _front_mid(qo[1])))
             b = _front_mid(other)
             d = round(math.dist(a, b), 1)
-            ang = _angle(u, (b[0] - a[0], b[1] - a[1]))
+            back = a[0] - u[0] * seat.spec.depth, a[1] - u[1] * seat.spec.depth
+            ang = _angle(u, (b[0] - back[0], b[1] - back[1]))
             pair = f"{ctx.name(pid)} to {ctx.name(qid)}"
             out.append(_check("group.talk", pair, d <= far.mm, d, "mm", f"at most {_m(far.mm)}",
                               far.cited, (pid, qid), room, a))
