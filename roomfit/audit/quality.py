@@ -124,7 +124,7 @@ def _show(v: float, unit: str) -> str:
     if unit == "mm":
         return f"{v / 1000:.2f} m"
     if unit == "deg":
-        return f"{v:.0f}°"
+        return f"{v:.1f}°"
     return f"{v:.0f} %"
 
 

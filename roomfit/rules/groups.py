@@ -21,7 +21,8 @@ from importlib import resources
 from roomfit.errors import Problem, RuleError
 from roomfit.plan.units import MM_PER
 
-__all__ = ["GroupParam", "PARAM_UNITS", "load_group_params", "group_param_problems", "param"]
+__all__ = ["GroupParam", "PARAM_UNITS", "load_group_params", "group_param_problems", "param",
+           "solver_weight"]
 
 #: Units a group value may use: lengths, degrees, and shares between 0 and 1.
 PARAM_UNITS = ("mm", "in", "deg", "ratio")
@@ -73,9 +74,19 @@ def group_param_problems(raw: dict[str, dict[str, object]]) -> list[Problem]:
 
 
 @functools.cache
-def _bundled() -> tuple[GroupParam, ...]:
+def _file() -> dict:
     path = resources.files("roomfit") / "data" / "groups.toml"
-    raw = tomllib.loads(path.read_text(encoding="utf-8"))["params"]
+    return tomllib.loads(path.read_text(encoding="utf-8"))
+
+
+def solver_weight() -> int:
+    """Weight of an unmet group rule in the placement model (``[solver].weight``)."""
+    return int(_file()["solver"]["weight"])
+
+
+@functools.cache
+def _bundled() -> tuple[GroupParam, ...]:
+    raw = _file()["params"]
     problems = group_param_problems(raw)
     if problems:
         raise RuleError(problems)

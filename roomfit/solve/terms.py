@@ -19,6 +19,7 @@ from ortools.sat.python import cp_model
 from roomfit.audit.geometry import fixture_polygon, fixture_zone, footprint_box, room_polygon, side_direction
 from roomfit.plan.data import Plan, Trip
 from roomfit.rules.catalog import PieceSpec
+from roomfit.solve.groups import conversation_terms, relation_group_terms, unmet_terms
 from roomfit.solve.rooms import RoomGeo
 from roomfit.solve.vars import PieceVars
 
@@ -206,7 +207,8 @@ def _relation_terms(m: cp_model.CpModel, pv: PieceVars, t: PieceVars, relation: 
         weight = int(w["facing"])
     else:
         return []
-    return [weight * (1 - met), int(w["relation"]) * _l1(m, tx, ty, sx, sy, 10)]
+    return [weight * (1 - met), int(w["relation"]) * _l1(m, tx, ty, sx, sy, 10),
+            *relation_group_terms(m, pv, t, relation, met)]
 
 
 def add_objective(m: cp_model.CpModel, pieces: list[PieceVars], geo: dict[str, RoomGeo], prefs: dict,
@@ -250,7 +252,7 @@ def add_objective(m: cp_model.CpModel, pieces: list[PieceVars], geo: dict[str, R
                         m.add(along + span <= lo).only_enforce_if(left)
                         m.add(along >= hi).only_enforce_if(right)
                         m.add_bool_or([left, right, pen, wl_lit.negated()])
-                        terms.append(int(w["bed_under_window"]) * pen)
+                        terms += [int(w["bed_under_window"]) * pen, *unmet_terms(pen)]
         if pv.spec.category == "dining_table":
             runs = [(sum(px for px, _ in f.zone or f.outline) / len(f.zone or f.outline),
                      sum(py for _, py in f.zone or f.outline) / len(f.zone or f.outline))
@@ -271,6 +273,7 @@ def add_objective(m: cp_model.CpModel, pieces: list[PieceVars], geo: dict[str, R
                 terms.append(int(w["daylight"]) * best)
     terms += _routine_terms(m, pieces, plan, routines, prefs) if plan is not None else []
     terms += _align_terms(m, pieces, prefs)
+    terms += conversation_terms(m, pieces)
     terms += extra or []
     if not terms:
         return False

@@ -1,0 +1,124 @@
+"""Functional groups in the placement model: strongly weighted terms that make the solver
+arrange pieces the way the layout-quality audit (``roomfit.audit.quality``) measures them.
+
+The model's terms (``roomfit.solve.terms``) build one literal per relation (seat facing the TV,
+coffee table in front of the seat, nightstand beside the bed head) and a penalty literal for
+a bed head under a window; this module weighs each unmet group rule by the group weight of
+``data/groups.toml`` (far above every other preference, so any arrangement that meets a
+group rule the room allows beats one that does not), and adds what the relations alone do
+not say:
+
+- a nightstand stands on a side the bed is used from (:func:`roomfit.audit.quality.used_long_sides`);
+- seats of a conversation group stand within speaking distance of another seat (L1 between
+  front middles, which bounds the audit's straight-line distance from above) and neither
+  behind the other's back (the audit's ``group.talk_turn``).
+
+Soft, not hard: a group rule the room cannot meet must not make the whole flat "impossible";
+the weight makes it as good as hard wherever the room allows it.
+"""
+
+from __future__ import annotations
+
+from typing import TYPE_CHECKING
+
+from ortools.sat.python import cp_model
+
+from roomfit.audit.geometry import side_direction
+from roomfit.audit.quality import used_long_sides
+from roomfit.rules.groups import param, solver_weight
+
+if TYPE_CHECKING:
+    from roomfit.solve.vars import PieceVars
+
+__all__ = ["unmet_terms", "relation_group_terms", "conversation_terms"]
+
+
+def unmet_terms(unmet: cp_model.LinearExprT) -> list[cp_model.LinearExprT]:
+    """The group weight on an expression that is 1 when a group rule is not met."""
+    return [solver_weight() * unmet]
+
+
+def _doubled_mid(pv: PieceVars, side: str) -> tuple[cp_model.LinearExprT, cp_model.LinearExprT]:
+    """Twice the middle of ``side`` of the piece, as linear expressions (x, y)."""
+    cx = 2 * pv.x + pv.width_expr()
+    cy = 2 * pv.y + pv.depth_expr()
+    ext = pv.spec.depth if side in ("front", "back") else pv.spec.width
+    ex = sum(lit * side_direction(side, rot)[0] * ext for (_, rot), lit in pv.alts.items())
+    ey = sum(lit * side_direction(side, rot)[1] * ext for (_, rot), lit in pv.alts.items())
+    return cx + ex, cy + ey
+
+
+def _on_used_side(m: cp_model.CpModel, stand: PieceVars, bed: PieceVars) -> cp_model.IntVar:
+    """A literal that implies: the nightstand's centre lies on a used long side of the bed
+    (always true for a bed used from both sides)."""
+    used = used_long_sides(bed.spec)
+    ok = m.new_bool_var("")
+    if len(used) == 2:
+        m.add(ok == 1)
+        return ok
+    scx, scy = 2 * stand.x + stand.width_expr(), 2 * stand.y + stand.depth_expr()
+    bcx, bcy = 2 * bed.x + bed.width_expr(), 2 * bed.y + bed.depth_expr()
+    options = []
+    for (_, rot), lit in bed.alts.items():
+        dx, dy = side_direction(used[0], rot)
+        p = m.new_bool_var("")
+        m.add_implication(p, lit)
+        m.add(dx * (scx - bcx) + dy * (scy - bcy) >= 1).only_enforce_if(p)
+        options.append(p)
+    m.add_bool_or(options).only_enforce_if(ok)
+    return ok
+
+
+def relation_group_terms(m: cp_model.CpModel, pv: PieceVars, target: PieceVars, relation: str,
+                         met: cp_model.IntVar) -> list[cp_model.LinearExprT]:
+    """Group terms of one catalogue relation whose literal ``met`` the model built: the
+    group weight when it is not met, and for a nightstand the same weight when it is not on
+    a side the bed is used from."""
+    terms = unmet_terms(1 - met)
+    if relation == "beside_head":
+        terms += unmet_terms(1 - _on_used_side(m, pv, target))
+    return terms
+
+
+def _assigned(pv: PieceVars) -> str | None:
+    rooms = {r for r, _ in pv.alts}
+    return next(iter(rooms)) if len(rooms) == 1 else None
+
+
+def _talk_pair(m: cp_model.CpModel, a: PieceVars, b: PieceVars, far: int) -> cp_model.IntVar:
+    """A literal that implies: the front middles of ``a`` and ``b`` are within ``far`` mm
+    (L1) and neither seat stands behind the other's back."""
+    ok = m.new_bool_var("")
+    (ax, ay), (bx, by) = _doubled_mid(a, "front"), _doubled_mid(b, "front")
+    dx, dy = m.new_int_var(0, 10_000_000, ""), m.new_int_var(0, 10_000_000, "")
+    m.add_abs_equality(dx, ax - bx)
+    m.add_abs_equality(dy, ay - by)
+    m.add(dx + dy <= 2 * far).only_enforce_if(ok)
+    for me, (ox, oy) in ((a, (bx, by)), (b, (ax, ay))):
+        kx, ky = _doubled_mid(me, "back")
+        for (_, rot), lit in me.alts.items():
+            ux, uy = side_direction("front", rot)
+            m.add(ux * (ox - kx) + uy * (oy - ky) >= 0).only_enforce_if([ok, lit])
+    return ok
+
+
+def conversation_terms(m: cp_model.CpModel, pieces: list[PieceVars]) -> list[cp_model.LinearExprT]:
+    """The group weight for each seat of a conversation group (two or more seats assigned to
+    one room) that has no other seat within speaking distance, turned towards it."""
+    far = param("talk.distance").mm
+    by_room: dict[str, list[PieceVars]] = {}
+    for pv in pieces:
+        room = _assigned(pv)
+        if room is not None and "conversation" in pv.spec.groups:
+            by_room.setdefault(room, []).append(pv)
+    terms: list[cp_model.LinearExprT] = []
+    for seats in by_room.values():
+        if len(seats) < 2 or all(s.locked for s in seats):
+            continue
+        pair = {(i, j): _talk_pair(m, seats[i], seats[j], far)
+                for i in range(len(seats)) for j in range(i + 1, len(seats))}
+        for i in range(len(seats)):
+            near = m.new_bool_var("")
+            m.add_bool_or([lit for (a, b), lit in pair.items() if i in (a, b)]).only_enforce_if(near)
+            terms += unmet_terms(1 - near)
+    return terms
