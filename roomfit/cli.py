@@ -13,13 +13,18 @@ import math
 import os
 import sys
 from collections.abc import Callable, Sequence
+from typing import TYPE_CHECKING
 
 from roomfit.caution import CAUTION
 from roomfit.errors import Problem, RoomfitError
+from roomfit.interrupts import Interrupted, interrupts_raised
 from roomfit.plan.data import Plan
 from roomfit.plan.read import read_plan
 from roomfit.rules.catalog import load_catalog, type_record
 from roomfit.rules.sets import RuleSet, choose_rules, load_ruleset, rule_record, rules_for, ruleset_ids
+
+if TYPE_CHECKING:
+    from roomfit.files import RunFolder
 
 __all__ = ["main", "build_parser"]
 
@@ -203,22 +208,23 @@ def _cmd_solve(args: argparse.Namespace) -> int:
 
     from roomfit.audit.check import audit
     from roomfit.audit.routes import score_routes
-    from roomfit.files import atomic_write, refuse_input_overwrite
+    from roomfit.interrupts import signals_kept
     from roomfit.plan.data import RuleChoice
-    from roomfit.plan.write import write_plan
+    from roomfit.plan.write import dumps_plan
     from roomfit.solve.outcome import describe
     from roomfit.solve.search import SolveOptions, solve
 
     plan, rules = _plan_and_rules(args)
+    run = _run_folder(args)  # a folder that may not be replaced is refused before the search
     if args.candidates < 1 or not 0 < args.time_limit < math.inf or args.grid < 1:
         raise RoomfitError(Problem("arguments", "--candidates, --time-limit and --grid must be "
                                    "positive (and the time limit a finite number of seconds)"))
-    out_dir = Path(args.output or f"{Path(args.plan).stem}-layouts")
     options = SolveOptions(candidates=args.candidates, time_limit=args.time_limit, seed=args.seed,
                            grid=args.grid)
     print(f"searching {args.plan} under {rules.id}: up to {options.candidates} candidates, "
           f"{options.time_limit:g} s", file=sys.stderr)
-    result = solve(plan, rules, options, progress=lambda line: print(line, file=sys.stderr))
+    with signals_kept():  # CP-SAT's own SIGINT handler must not swallow an interrupt
+        result = solve(plan, rules, options, progress=lambda line: print(line, file=sys.stderr))
     st = result.stats
     print(f"{args.plan}: {result.status} ({st.elapsed:.1f} s, {st.solves} solver runs, "
           f"{st.audits} audits, {st.cuts} layouts cut by the audit)")
@@ -227,6 +233,7 @@ def _cmd_solve(args: argparse.Namespace) -> int:
         print(words.headline)
         for line in words.details:
             print(f"  {line}")
+        _finish_run(run, args, rules, result.status)
         print(CAUTION)
         return EXIT_FAIL if result.status == "impossible" else EXIT_TIMEOUT
     stem = Path(args.plan).stem
@@ -234,20 +241,14 @@ def _cmd_solve(args: argparse.Namespace) -> int:
     print(f"{'candidate':>9}  {'objective':>9}  {'optimal / gap':>13}  {'walking':>10}  checker  files")
     for c in result.candidates:
         furnished = chosen.with_layout(c.layout)
-        toml_path = out_dir / f"{stem}-{c.rank + 1}.toml"
-        refuse_input_overwrite(toml_path, args.plan)
-        write_plan(furnished, toml_path)
-        files = [str(toml_path)]
+        files = [str(run.add(f"{stem}-{c.rank + 1}.toml", dumps_plan(furnished)))]
         try:
             from roomfit.present.draw import draw_svg
         except ImportError:  # drawing not available: the plan files are still written
             draw_svg = None
         if draw_svg is not None:
-            svg_path = out_dir / f"{stem}-{c.rank + 1}.svg"
-            refuse_input_overwrite(svg_path, args.plan)
-            atomic_write(svg_path, draw_svg(furnished, rules, title=f"{plan.name}: candidate "
-                                                                    f"{c.rank + 1}"))
-            files.append(str(svg_path))
+            svg = draw_svg(furnished, rules, title=f"{plan.name}: candidate {c.rank + 1}")
+            files.append(str(run.add(f"{stem}-{c.rank + 1}.svg", svg)))
         verdict = c.audit if c.audit is not None else audit(furnished, rules)
         ok = sum(f.ok for f in verdict.findings)
         gap = "optimal" if c.optimal else f"gap {c.gap:.0%}"
@@ -258,8 +259,37 @@ def _cmd_solve(args: argparse.Namespace) -> int:
               f"{', '.join(files)}")
     for line in words.details:
         print(line)
+    _finish_run(run, args, rules, result.status)
     print(CAUTION)
     return EXIT_OK
+
+
+def _run_folder(args: argparse.Namespace) -> RunFolder:
+    """The folder ``solve`` writes its run into (``-o``, default ``<plan>-layouts``)."""
+    from pathlib import Path
+
+    from roomfit.files import RunFolder
+
+    return RunFolder(args.output or f"{Path(args.plan).stem}-layouts", args.plan)
+
+
+def _finish_run(run: RunFolder, args: argparse.Namespace, rules: RuleSet, outcome: str) -> None:
+    """Swap the run's files in with a manifest saying what made them (the plan's hash, rule
+    set, seed, limits, tool version), so a folder never mixes two runs."""
+    import hashlib
+    from pathlib import Path
+
+    from roomfit.plan.limits import MAX_FILE_BYTES
+
+    with Path(args.plan).open("rb") as fh:
+        digest = hashlib.sha256(fh.read(MAX_FILE_BYTES + 1)).hexdigest()
+    folder = run.finish({
+        "tool": "roomfit", "version": _version(), "command": "solve", "plan": str(args.plan),
+        "plan_sha256": digest, "rules": rules.id, "overrides": {r.id: r.value for r in rules.overridden},
+        "seed": args.seed, "limits": {"time_limit_s": args.time_limit, "candidates":
+                                      args.candidates, "grid_mm": args.grid},
+        "outcome": outcome})
+    print(f"run written to {folder}/ ({len(run.files)} files and manifest.json)")
 
 
 def _arrangements(args: argparse.Namespace) -> tuple[list[Plan], list[str], list[RuleSet]]:
@@ -346,6 +376,36 @@ def _version() -> str:
         return "(not installed)"
 
 
+#: Largest ``--seed``: CP-SAT's random seed is a signed 32-bit integer.
+SEED_MAX = 2**31 - 1
+
+#: Largest ``--grid`` in mm (a coarser grid would not fit a door in a room).
+GRID_MAX_MM = 1000
+
+
+def _within(low: int, high: int) -> Callable[[str], int]:
+    """An argument type: a whole number from ``low`` to ``high``, else a message naming them."""
+    def whole(text: str) -> int:
+        try:
+            value = int(text)
+        except ValueError:
+            raise argparse.ArgumentTypeError(f"expected a whole number, found {text!r}") from None
+        if not low <= value <= high:
+            raise argparse.ArgumentTypeError(f"{value} is outside {low} to {high}")
+        return value
+    return whole
+
+
+def _text_argument(text: str) -> str:
+    """An argument type for text drawn or printed (a title): no control characters."""
+    from roomfit.plan.limits import check_text
+
+    wrong = check_text(text)
+    if wrong is not None:
+        raise argparse.ArgumentTypeError(f"the text {wrong}")
+    return text
+
+
 def build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="roomfit",
@@ -372,7 +432,8 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("plan", help="plan file (.toml)")
     p.add_argument("-o", "--output", required=True, help="SVG file to write")
     p.add_argument("--rules", metavar="SET", help="rule set for the use zones (default: the plan's)")
-    p.add_argument("--title", help="headline of the title block (default: the plan's name)")
+    p.add_argument("--title", type=_text_argument,
+                   help="headline of the title block (default: the plan's name)")
     p.set_defaults(func=_cmd_draw)
     p = sub.add_parser("export", help="export a plan as GeoJSON in local coordinates (metres)")
     p.add_argument("plan", help="plan file (.toml)")
@@ -396,9 +457,9 @@ def build_parser() -> argparse.ArgumentParser:
                    help="seconds for the whole search (default 20)")
     p.add_argument("--rules", metavar="SET", help="rule set to satisfy, as published; the plan's "
                    "overrides apply only to its own set (default: the plan's)")
-    p.add_argument("--seed", type=int, default=0, metavar="K",
-                   help="random seed; same seed, same result")
-    p.add_argument("--grid", type=int, default=50, metavar="MM",
+    p.add_argument("--seed", type=_within(0, SEED_MAX), default=0, metavar="K",
+                   help=f"random seed, 0 to {SEED_MAX}; same seed, same result")
+    p.add_argument("--grid", type=_within(1, GRID_MAX_MM), default=50, metavar="MM",
                    help="grid (mm) for angled walls, door swings and the turning space (default 50)")
     p.add_argument("-o", "--output", metavar="DIR",
                    help="folder for the plan files and drawings (default ./<plan>-layouts/)")
@@ -409,7 +470,7 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--rules", help="judge every plan under this rule set, without the plans' "
                    "overrides (default: each plan's own set and overrides)")
     p.add_argument("--html", metavar="FILE", help="also write the client report (HTML) here")
-    p.add_argument("--title", help="title of the HTML report")
+    p.add_argument("--title", type=_text_argument, help="title of the HTML report")
     p.set_defaults(func=_cmd_compare)
     p = sub.add_parser("report", help="write the client report (HTML) for one or more "
                        "furnished plans: drawings, routes, metrics, findings with sources")
@@ -417,7 +478,7 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("-o", "--output", required=True, metavar="FILE", help="report file (.html)")
     p.add_argument("--rules", help="judge every plan under this rule set, without the plans' "
                    "overrides (default: each plan's own set and overrides)")
-    p.add_argument("--title", help="title of the report")
+    p.add_argument("--title", type=_text_argument, help="title of the report")
     p.set_defaults(func=_cmd_report)
     p = sub.add_parser("import", help="read one storey of an IFC building model (IFC2x3, IFC4) "
                        "into a plan file, reporting every guess")
@@ -440,13 +501,15 @@ def main(argv: Sequence[str] | None = None) -> int:
     args = parser.parse_args(argv)
     func: Callable[[argparse.Namespace], int] = args.func
     try:
-        return func(args)
+        with interrupts_raised():
+            return func(args)
     except RoomfitError as e:
         print(e.render(), file=sys.stderr)
         return EXIT_BAD_INPUT
-    except KeyboardInterrupt:
-        print("interrupted", file=sys.stderr)
-        return 130
+    except KeyboardInterrupt as e:
+        print("interrupted: outputs not yet complete were not written; earlier results are as "
+              "they were", file=sys.stderr)
+        return 128 + (e.signum if isinstance(e, Interrupted) else 2)
     except BrokenPipeError:
         # The reader (e.g. `| head`) went away: stop quietly, as Unix tools do.
         devnull = os.open(os.devnull, os.O_WRONLY)

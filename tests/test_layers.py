@@ -17,7 +17,7 @@ PKG = ROOT / "roomfit"
 
 #: Stage of each module (dotted name below ``roomfit``; ``app`` is the page script).
 STAGE = {
-    "__init__": 0, "__main__": 11, "errors": 0, "files": 0, "caution": 0,
+    "__init__": 0, "__main__": 11, "errors": 0, "files": 0, "interrupts": 0, "caution": 0,
     "plan": 1, "plan.units": 1, "plan.data": 1, "plan.limits": 1,
     "rules": 2, "rules.sets": 2, "rules.catalog": 2, "rules.groups": 2,
     # the reader validates piece types and rule-set names against the rules stage
