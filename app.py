@@ -482,6 +482,7 @@ def _results(done: dict[str, Any]) -> None:
 def _candidate(i: int, cand: Any, a: dict[str, Any]) -> None:
     row = a["row"]
     st.markdown(f"#### Arrangement {i + 1}")
+    st.caption(row.idea)
     _show_svg(a["svg"])
     m1, m2 = st.columns(2)
     m1.metric("Rules failed", row.text("rules_failed"))

@@ -257,6 +257,7 @@ def _cmd_solve(args: argparse.Namespace) -> int:
         walking = f"{routes.walking_m_per_day:.0f} m/day"
         print(f"{c.rank + 1:>9}  {c.objective:>9g}  {gap:>13}  {walking:>10}  {check:<7}  "
               f"{', '.join(files)}")
+    _print_ideas(plan, rules, result.candidates)
     for line in words.details:
         print(line)
     _finish_run(run, args, rules, result.status)
@@ -290,6 +291,25 @@ def _finish_run(run: RunFolder, args: argparse.Namespace, rules: RuleSet, outcom
                                       args.candidates, "grid_mm": args.grid},
         "outcome": outcome})
     print(f"run written to {folder}/ ({len(run.files)} files and manifest.json)")
+
+
+def _print_ideas(plan: Plan, rules: RuleSet, candidates: Sequence) -> None:
+    """Each candidate's idea in one line, its unmet group rules (measured, with targets) and,
+    when the plan has furniture placed as it stands, the moving list from there."""
+    from roomfit.audit.ideas import describe, moves
+    from roomfit.audit.quality import Kind, quality
+
+    for c in candidates:
+        furnished = plan.with_layout(c.layout)
+        groups = [q for q in quality(furnished, rules) if q.kind == Kind.GROUP]
+        print(f"candidate {c.rank + 1}: {describe(furnished, rules)}")
+        print(f"  group rules met {sum(q.ok for q in groups)} of {len(groups)}"
+              + "".join(f"\n  ! {q.text}" for q in groups if not q.ok))
+        if plan.layout:
+            todo = moves(plan, furnished, rules)
+            print("  moving list from today's arrangement:" + ("" if todo else " nothing moves"))
+            for line in todo:
+                print(f"    - {line}")
 
 
 def _arrangements(args: argparse.Namespace) -> tuple[list[Plan], list[str], list[RuleSet]]:

@@ -91,6 +91,20 @@ def test_candidates_differ_meaningfully() -> None:
     assert len(moved) >= 2
 
 
+@pytest.mark.parametrize("path", SAMPLES, ids=[p.stem for p in SAMPLES])
+def test_candidates_differ_in_a_way_a_client_sees(path: Path) -> None:
+    # some main piece (bed, sofa, table, desk) stands on another wall, in another part of the
+    # room, faces elsewhere or is in another room: measured on the geometry, not the model
+    from roomfit.audit.ideas import spots, visible_changes
+
+    plan, rules = _rules(path, None)
+    result = _solved(str(path), None)
+    seen = [spots(plan.with_layout(c.layout), rules) for c in result.candidates]
+    for i in range(1, len(seen)):
+        for j in range(i):
+            assert visible_changes(seen[j], seen[i]), (path.stem, i, j)
+
+
 def test_against_wall_pieces_touch_a_wall() -> None:
     plan, rules = _rules(PLANS / "ground-floor-wheelchair.toml", None)
     specs = {s.id: s for s in resolve_pieces(plan, rules)}
@@ -433,14 +447,17 @@ def test_nightstand_touches_the_bed_on_the_head_half_of_a_long_side() -> None:
     assert head.distance(c) <= length / 2 and foot.distance(c) <= length
 
 
-def test_candidates_are_ranked_by_the_route_scorer() -> None:
+def test_candidates_are_ranked_by_group_rules_then_the_route_scorer() -> None:
+    from roomfit.audit.quality import group_failures
     from roomfit.audit.routes import score_routes
 
     for name in ("two-bed.toml", "ground-floor-wheelchair.toml"):
         plan, rules = _rules(PLANS / name, None)
         result = _solved(str(PLANS / name), None)
         assert len(result.candidates) >= 2
-        keys = [score_routes(plan.with_layout(c.layout), rules).rank_key for c in result.candidates]
+        keys = [(group_failures(plan.with_layout(c.layout), rules),
+                 score_routes(plan.with_layout(c.layout), rules).rank_key)
+                for c in result.candidates]
         assert keys == sorted(keys)
         assert [c.rank for c in result.candidates] == list(range(len(keys)))
 

@@ -68,6 +68,7 @@ __all__ = [
     "view_range",
     "used_long_sides",
     "quality",
+    "group_failures",
     "quality_record",
     "quality_lines",
     "compass",
@@ -539,6 +540,11 @@ def quality(plan: Plan, rules: RuleSet) -> tuple[GroupCheck, ...]:
     """
     ctx = _context(plan, rules)
     return tuple(c for rule in _RULES for c in rule(ctx))
+
+
+def group_failures(plan: Plan, rules: RuleSet) -> int:
+    """How many functional-group rules (not preferences) the arrangement misses."""
+    return sum(not c.ok for c in quality(plan, rules) if c.kind == Kind.GROUP)
 
 
 def quality_record(checks: Iterable[GroupCheck]) -> list[dict[str, object]]:

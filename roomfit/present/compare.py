@@ -28,6 +28,7 @@ from shapely.ops import unary_union
 
 from roomfit.audit.check import Audit, audit
 from roomfit.audit.geometry import fixture_polygon, footprint, lies_flat
+from roomfit.audit.ideas import describe
 from roomfit.audit.quality import GroupCheck, Kind, quality, quality_lines
 from roomfit.audit.routes import RouteScores, score_routes
 from roomfit.plan.data import Plan
@@ -90,6 +91,8 @@ class Row:
     turning_need: int
     free_floor_share: float
     quality: tuple[GroupCheck, ...]
+    #: The arrangement's idea in one line (:func:`roomfit.audit.ideas.describe`).
+    idea: str = ""
 
     def _met(self, kind: Kind) -> tuple[int, int]:
         mine = [c for c in self.quality if c.kind == kind]
@@ -177,6 +180,7 @@ def compare_row(plan: Plan, name: str, rules: RuleSet | None = None) -> Row:
         turning_have=sum(f.ok for f in turning), turning_need=len(turning),
         free_floor_share=_free_share(plan, rs),
         quality=quality(plan, rs),
+        idea=describe(plan, rs),
     )
 
 
@@ -218,6 +222,7 @@ def render_table(comparison: Comparison, mark: str = "*") -> str:
     rows = comparison.rows
     head = ["", *(r.name for r in rows)]
     body = [["Rule set", *(r.rules.id for r in rows)]]
+    notes_idea = [f"{r.name}: {r.idea}" for r in rows]
     for m in METRICS:
         body.append([m.label, *(r.text(m.id) + (f" {mark}" if comparison.is_best(m.id, i) else "")
                                 for i, r in enumerate(rows))])
@@ -227,6 +232,7 @@ def render_table(comparison: Comparison, mark: str = "*") -> str:
              for line in table]
     lines.insert(1, "  ".join("-" * w for w in widths))
     notes = [f"{mark} best value" if comparison.best else "no metric tells the arrangements apart"]
+    notes += ["The idea of each arrangement:", *("  " + n for n in notes_idea)]
     notes += quality_notes(comparison)
     for r in rows:
         for t in r.routes.unreachable:

@@ -63,7 +63,9 @@ def _metrics_table(cmp: Comparison) -> str:
     head = "".join(f"<th>{escape(r.name)}</th>" for r in cmp.rows)
     out = [f"<table class='metrics'><tr><th>Metric</th>{head}</tr>",
            "<tr><td>Rule set</td>" + "".join(f"<td>{escape(r.rules.id)} ({escape(r.rules.label)})"
-                                             "</td>" for r in cmp.rows) + "</tr>"]
+                                             "</td>" for r in cmp.rows) + "</tr>",
+           "<tr><td>The idea</td>" + "".join(f"<td>{escape(r.idea)}</td>" for r in cmp.rows)
+           + "</tr>"]
     for m in METRICS:
         cells = []
         for i, r in enumerate(cmp.rows):

@@ -13,6 +13,9 @@ not say:
   front middles, which bounds the audit's straight-line distance from above) and neither
   behind the other's back (the audit's ``group.talk_turn``).
 
+:func:`main_differs` gives the search the "must differ in a way a client sees" rule between
+candidates (the measure is ``roomfit.audit.ideas``).
+
 Soft, not hard: a group rule the room cannot meet must not make the whole flat "impossible";
 the weight makes it as good as hard wherever the room allows it.
 """
@@ -23,14 +26,16 @@ from typing import TYPE_CHECKING
 
 from ortools.sat.python import cp_model
 
-from roomfit.audit.geometry import side_direction
+from roomfit.audit.geometry import room_polygon, side_direction
+from roomfit.audit.ideas import is_main
 from roomfit.audit.quality import used_long_sides
+from roomfit.plan.data import Placement, Plan
 from roomfit.rules.groups import param, solver_weight
 
 if TYPE_CHECKING:
     from roomfit.solve.vars import PieceVars
 
-__all__ = ["unmet_terms", "relation_group_terms", "conversation_terms"]
+__all__ = ["unmet_terms", "relation_group_terms", "conversation_terms", "main_differs"]
 
 
 def unmet_terms(unmet: cp_model.LinearExprT) -> list[cp_model.LinearExprT]:
@@ -122,3 +127,28 @@ def conversation_terms(m: cp_model.CpModel, pieces: list[PieceVars]) -> list[cp_
             m.add_bool_or([lit for (a, b), lit in pair.items() if i in (a, b)]).only_enforce_if(near)
             terms += unmet_terms(1 - near)
     return terms
+
+
+def main_differs(m: cp_model.CpModel, pieces: list[PieceVars], where: dict[str, Placement],
+                 plan: Plan) -> list[cp_model.IntVar]:
+    """Literals whose disjunction says some main piece (:func:`roomfit.audit.ideas.is_main`)
+    stands visibly elsewhere than in ``where``: another room; for a bed another turn (its
+    head on another wall); for a sofa or desk another turn (it faces elsewhere); for any main
+    piece a move of a third of its room's extent along x or y (another part of the room).
+    Empty when no movable main piece is in ``where``."""
+    out: list[cp_model.IntVar] = []
+    for pv in pieces:
+        at = where.get(pv.spec.id)
+        if pv.locked or at is None or not is_main(pv.spec):
+            continue
+        turns = pv.spec.category in ("bed", "sofa", "desk")
+        out += [lit for (r, rot), lit in pv.alts.items()
+                if r != at.room or (turns and rot != at.rotation)]
+        x0, y0, x1, y1 = room_polygon(plan.room(at.room)).bounds
+        for var, v, third in ((pv.x, at.x, (x1 - x0) / 3), (pv.y, at.y, (y1 - y0) / 3)):
+            step = max(1, int(third))
+            a, b = m.new_bool_var(""), m.new_bool_var("")
+            m.add(var >= v + step).only_enforce_if(a)
+            m.add(var <= v - step).only_enforce_if(b)
+            out += [a, b]
+    return out

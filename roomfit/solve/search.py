@@ -7,9 +7,10 @@ with exact geometry (``roomfit.audit.check.audit``); a layout that fails is cut 
 pieces the failed finding names must move or turn) and the model is solved again. Only
 layouts that pass the audit are returned.
 
-Candidates are ranked as ``roomfit compare`` ranks plans: by the route scorer's rank key
-(``roomfit.audit.routes.score_routes``: unreachable trips, then walking metres per day), the
-objective breaking ties.
+Candidates are ranked by the functional-group rules they miss
+(``roomfit.audit.quality.group_failures``), then as ``roomfit compare`` ranks plans: by the
+route scorer's rank key (``roomfit.audit.routes.score_routes``: unreachable trips, then
+walking metres per day), the objective breaking ties.
 
 Outcomes (``SolveResult.status``): ``optimal`` (every candidate is proven optimal for the
 soft preferences), ``found`` (candidates found, not all proven optimal), ``impossible`` (no
@@ -41,6 +42,7 @@ from typing import TYPE_CHECKING
 
 from ortools.sat.python import cp_model
 
+from roomfit.audit.quality import group_failures
 from roomfit.audit.routes import RouteScores, default_routines, score_routes
 from roomfit.errors import Problem, RoomfitError
 from roomfit.plan.data import Layout, Placement, Plan, Trip
@@ -48,6 +50,7 @@ from roomfit.rules.catalog import PieceSpec, resolve_pieces
 from roomfit.rules.sets import RuleSet
 from roomfit.solve.cuts import SoundCut, sound_cut
 from roomfit.solve.explain import Explanation, explain, precheck
+from roomfit.solve.groups import main_differs
 from roomfit.solve.model import build_model, decode, differs, hint, tune
 from roomfit.solve.rooms import room_geometry
 from roomfit.solve.vars import Built
@@ -535,7 +538,9 @@ class _Search:
     def _forbid_near(self, built: Built, movable: list, where: dict[str, Placement]) -> None:
         """The next layout must move at least ``_DIFFER_PIECES`` pieces away from ``where``.
         Interchangeable pieces (two equal nightstands) count as moved only when they stand on
-        none of their class's earlier spots, so swapping them is no new arrangement."""
+        none of their class's earlier spots, so swapping them is no new arrangement. Some main
+        piece must also stand visibly elsewhere (``groups.main_differs``: another wall, part
+        of the room, facing or room), so candidates differ in ways a client sees."""
         if not movable:
             return
         m = built.model
@@ -550,6 +555,9 @@ class _Search:
                 m.add_bool_or([*differs(m, pv, where[other], _MOVE), d.negated()])
             flags.append(d)
         m.add(sum(flags) >= need)
+        visible = main_differs(m, movable, where, self.plan)  # a change a client sees
+        if visible:
+            m.add_bool_or(visible)
 
 
 def _interchangeable(spec: PieceSpec) -> PieceSpec:
@@ -706,9 +714,11 @@ def _combine(plan: Plan, rules: RuleSet, searches: list[_Search], wanted: int,
         out.append(Candidate(layout, sum(f.objective for f in picks), sum(f.bound for f in picks),
                              all(f.optimal for f in picks), len(out), routes.rank_key, verdict,
                              routes))
-    # ranked as `roomfit compare` ranks plans: fewer unreachable trips, then fewer walking
-    # metres per day; the objective breaks ties
-    out.sort(key=lambda c: (c.route_key, c.objective))
+    # fewer unmet functional-group rules first (a layout a designer would sign), then ranked
+    # as `roomfit compare` ranks plans: fewer unreachable trips, then fewer walking metres
+    # per day; the objective breaks ties
+    out.sort(key=lambda c: (group_failures(plan.with_layout(c.layout), rules), c.route_key,
+                            c.objective))
     return [replace(c, rank=i) for i, c in enumerate(out)]
 
 
