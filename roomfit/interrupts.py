@@ -76,8 +76,8 @@ def signals_held() -> Iterator[None]:
     finally:
         for s, handler in saved.items():
             signal.signal(s, handler if handler is not None else signal.SIG_DFL)
-        for s in arrived[:1]:
-            signal.raise_signal(s)
+        if arrived:
+            signal.raise_signal(arrived[0])
 
 
 @contextmanager
@@ -91,17 +91,18 @@ def signals_kept() -> Iterator[None]:
     handlers = {s: signal.getsignal(s) for s in _CAUGHT}
     old_mask = signal.pthread_sigmask(signal.SIG_BLOCK, _CAUGHT)  # threads started now inherit it
     stop = threading.Event()
-    later: list[int] = []  # signals whose handler is the system's default: raised afterwards
+    later: list[signal.Signals] = []  # their handler is the system's default: raised after
 
     def watch() -> None:
         while not stop.is_set():
             info = signal.sigtimedwait(_CAUGHT, 0.1)
-            if info is None or handlers[info.si_signo] is signal.SIG_IGN:
+            if info is None:
                 continue
-            if callable(handlers[info.si_signo]):
-                _thread.interrupt_main(info.si_signo)
-            else:
-                later.append(info.si_signo)
+            signum = signal.Signals(info.si_signo)
+            if callable(handlers[signum]):
+                _thread.interrupt_main(signum)
+            elif handlers[signum] is not signal.SIG_IGN:
+                later.append(signum)
 
     watcher = threading.Thread(target=watch, name="roomfit-interrupts", daemon=True)
     watcher.start()

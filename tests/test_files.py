@@ -8,6 +8,7 @@ import threading
 from pathlib import Path
 
 import pytest
+from conftest import PROBE_FLAT
 
 from roomfit.cli import main
 from roomfit.errors import RoomfitError
@@ -68,22 +69,7 @@ def test_cli_output_to_folder_exits_2(cmd: str, tmp_path: Path,
 
 # --------------------------------------------------------------------------- run folders
 
-ROOM = '''roomfit_plan = 1
-name = "Two pieces (invented)"
-
-[[rooms]]
-id = "room"
-use = "living"
-outline = [[0, 0], [4000, 0], [4000, 3000], [0, 3000]]
-
-[[doors]]
-id = "d"
-rooms = ["room", "outside"]
-at = [2000, 0]
-width = 900
-swings_into = "room"
-hinge = "left"
-
+ROOM = PROBE_FLAT + '''
 [[furniture]]
 id = "chair"
 type = "custom"

@@ -7,29 +7,14 @@ from __future__ import annotations
 from pathlib import Path
 
 import pytest
+from conftest import PROBE_FLAT
 
 from roomfit.cli import main
 from roomfit.errors import PlanError
 from roomfit.plan import limits
 from roomfit.plan.read import loads_plan, read_plan
 
-BASE = '''roomfit_plan = 1
-name = "Probe flat (invented)"
-units = "mm"
-
-[[rooms]]
-id = "room"
-use = "living"
-outline = [[0, 0], [4000, 0], [4000, 3000], [0, 3000]]
-
-[[doors]]
-id = "d"
-rooms = ["room", "outside"]
-at = [2000, 0]
-width = 900
-swings_into = "room"
-hinge = "left"
-'''
+BASE = PROBE_FLAT
 
 PIECE = '''
 [[furniture]]
