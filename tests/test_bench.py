@@ -143,6 +143,10 @@ def test_harness_writes_well_formed_results(tmp_path: Path) -> None:
     assert svg.tag.endswith("svg")
     assert said and all(m.startswith("[1/1]") for m in said)
     assert "| one room, 10 pieces: first valid (median) |" in markdown(data)
+    # group rules measured on both sides (roomfit.audit.quality), side by side
+    assert {"group_met", "group_total", "group_failed"} <= set(row["baseline"]["arrangement"])
+    assert set(data["summary"]["group_rules"]) == {"solver", "baseline"}
+    assert "Functional-group rules met" in markdown(data)
 
 
 def _row(name: str, tags: tuple[str, ...], solver: dict, baseline: dict | None = None) -> dict:
@@ -151,6 +155,22 @@ def _row(name: str, tags: tuple[str, ...], solver: dict, baseline: dict | None =
     if baseline is not None:
         row["baseline"] = baseline
     return row
+
+
+def test_group_rules_summed_by_hand() -> None:
+    from roomfit.bench.run import group_rules_summary
+
+    good = {"passed": True, "group_met": 4, "group_total": 4}
+    half = {"passed": True, "group_met": 2, "group_total": 4}
+    rows = [_row("a", ("generated",), {"arrangements": [good, half]}, {"arrangement": half}),
+            _row("b", ("generated",), {"arrangements": [half]},
+                 {"arrangement": {**good, "passed": False}})]  # an invalid one does not count
+    g = group_rules_summary(rows)
+    # solver first candidates: 4 + 2 of 8 checks; baseline: only a's valid 2 of 4
+    assert g["solver"] == {"arrangements": 2, "checks_met": 6, "checks": 8, "share": 0.75,
+                           "all_met": 1}
+    assert g["baseline"] == {"arrangements": 1, "checks_met": 2, "checks": 4, "share": 0.5,
+                             "all_met": 0}
 
 
 def test_summary_targets_by_hand() -> None:

@@ -45,6 +45,8 @@ __all__ = [
     "machine",
     "run_instance",
     "summarize",
+    "group_rules_summary",
+    "group_rules_line",
     "scaling_rows",
     "scaling_svg",
     "table",
@@ -262,6 +264,11 @@ def _time_arrangement(plan: Plan, rules: RuleSet, layout: Layout) -> dict[str, A
     except Exception as e:  # a stage still being written must not stop the benchmark
         row["routes_error"] = _error(e)
     try:
+        from roomfit.audit.quality import group_summary
+        row.update(group_summary(furnished, rules))
+    except Exception as e:
+        row["groups_error"] = _error(e)
+    try:
         row["baseline_soft_cost"] = round(layout_cost(plan, rules, layout)[1], 4)
     except Exception as e:
         row["baseline_cost_error"] = _error(e)
@@ -408,6 +415,29 @@ def _rate(xs: list[bool]) -> float | None:
     return round(sum(xs) / len(xs), 3) if xs else None
 
 
+def group_rules_summary(rows: list[dict[str, Any]]) -> dict[str, Any]:
+    """Functional-group rules met (``roomfit.audit.quality``) by the solver's first candidate
+    and by the baseline's arrangement, over the instances where each found a valid one."""
+    out: dict[str, Any] = {}
+    for who, pick in (("solver", lambda r: (r.get("solver", {}).get("arrangements") or [{}])[0]),
+                      ("baseline", lambda r: r.get("baseline", {}).get("arrangement", {}))):
+        arr = [a for a in map(pick, rows) if a.get("passed") and "group_total" in a]
+        met, total = sum(a["group_met"] for a in arr), sum(a["group_total"] for a in arr)
+        out[who] = {"arrangements": len(arr), "checks_met": met, "checks": total,
+                    "share": round(met / total, 3) if total else None,
+                    "all_met": sum(a["group_met"] == a["group_total"] for a in arr)}
+    return out
+
+
+def group_rules_line(g: dict[str, Any]) -> str:
+    """The solver's and the baseline's functional-group satisfaction side by side."""
+    parts = [f"{who} {v['checks_met']} of {v['checks']} checks ({_fmt(v['share'])}), every "
+             f"group rule met in {v['all_met']} of {v['arrangements']} arrangements"
+             for who, v in g.items()]
+    return "Functional-group rules met (valid arrangements; solver: first candidate): " + (
+        "; ".join(parts) or "not measured")
+
+
 def summarize(rows: list[dict[str, Any]]) -> dict[str, Any]:
     """Targets met or missed, success rates, ratios, the checker pass rate."""
     def tagged(tag: str) -> list[dict[str, Any]]:
@@ -458,6 +488,7 @@ def summarize(rows: list[dict[str, Any]]) -> dict[str, Any]:
         if not measured:
             entry["met"] = None
     out["comparison"] = comp
+    out["group_rules"] = group_rules_summary(rows)
     ratios: dict[str, Any] = {}
     for key in ("time_to_valid_ratio", "walking_ratio", "preference_ratio"):
         xs = [r["compare"][key] for r in rows if r.get("compare", {}).get(key) is not None]
@@ -633,6 +664,7 @@ def markdown(results: dict[str, Any]) -> str:
             "name", "rooms", "pieces", "share", "status", "first", "all", "cand", "pass",
             "rounds", "peak", "sa_ok", "sa_first")) + " |")
     ra = summ["ratios"]
+    lines += ["", group_rules_line(summ.get("group_rules", {}))]
     lines += ["", "Ratios (baseline / solver, median over instances where both found a valid "
               "arrangement): " + ", ".join(f"{k} {v['median']} (n={v['n']})" for k, v in ra.items()),
               "", f"Audit time per arrangement: median {summ['audit_s']['median']} s, max "
@@ -711,6 +743,7 @@ def main(argv: Sequence[str] | None = None) -> int:
         detail = json.dumps({k: v for k, v in t.items() if k != "met"})
         verdict = {True: "met", False: "MISSED", None: "not measured"}[t["met"]]
         print(f"{name}: {verdict}  {detail}")
+    print(group_rules_line(results["summary"].get("group_rules", {})))
     print(f"\nresults: {out}")
     return 0
 
