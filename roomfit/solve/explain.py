@@ -22,6 +22,7 @@ import time
 from dataclasses import dataclass, replace
 
 from ortools.sat.python import cp_model
+from shapely.geometry.base import BaseGeometry
 from shapely.ops import unary_union
 
 from roomfit.audit.geometry import door_shapes, fixture_polygon, fixture_zone, room_polygon
@@ -72,7 +73,7 @@ def precheck(plan: Plan, rules: RuleSet, specs: tuple[PieceSpec, ...]) -> Explan
         if not mine:
             continue
         poly = room_polygon(room)
-        taken = [fixture_polygon(f) for f in plan.fixtures if f.room == room.id]
+        taken: list[BaseGeometry] = [fixture_polygon(f) for f in plan.fixtures if f.room == room.id]
         taken += [z for f in plan.fixtures if f.room == room.id and (z := fixture_zone(f)) is not None]
         taken += [ds.approach[room.id] for ds in shapes if room.id in ds.approach]
         free = poly.difference(unary_union(taken)).area if taken else poly.area
@@ -87,7 +88,7 @@ def precheck(plan: Plan, rules: RuleSet, specs: tuple[PieceSpec, ...]) -> Explan
     return None
 
 
-def _check(built, solver_params, groups: list[str], deadline: float) -> int:
+def _check(built, solver_params, groups: list[str], deadline: float) -> cp_model.CpSolverStatus:
     m = built.model
     m.clear_assumptions()
     m.add_assumptions([built.groups[g] for g in groups])
@@ -171,7 +172,7 @@ def _smaller(plan: Plan, rules: RuleSet, specs: list[PieceSpec], rooms: list[str
              pieces: tuple[str, ...], deadline: float) -> list[str]:
     """Try the next smaller catalogue types of each clashing piece's category."""
     catalog = load_catalog()
-    out = []
+    out: list[str] = []
     for pid in pieces:
         spec = next(s for s in specs if s.id == pid)
         if spec.type not in catalog:

@@ -284,8 +284,8 @@ def _floor_rules(ctx: _Ctx, g: RoomGeo, fp: list, strengthen: bool) -> None:
                 for rect in rects]
         keep += [box(*rect) for rect in g.walkways] if strengthen else []
         if keep:
-            rects = cover_rects(shapely.union_all(keep), ctx.grid)
-            _no_overlap(m, feet + [_fixed_box(m, rect) for rect in rects])
+            _no_overlap(m, feet + [_fixed_box(m, rect)
+                                   for rect in cover_rects(shapely.union_all(keep), ctx.grid)])
     # window bands keep tall pieces away
     for wid, sill, rects in g.bands:
         tall = [(ix, iy) for q, _, ix, iy in fp if q.spec.height > sill or q.spec.tall]
@@ -406,7 +406,7 @@ def _related_pairs(pieces: list[PieceVars]) -> set[frozenset[str]]:
 
 
 def _gap_rules(m: cp_model.CpModel, pieces: list[PieceVars], g: RoomGeo, route: int, grid: int,
-               skip: set[frozenset[str]] = frozenset()) -> None:
+               skip: frozenset[frozenset[str]] | set[frozenset[str]] = frozenset()) -> None:
     """Two footprints in one room nearly touch (gaps at most ``grid`` both ways) or stand
     ``route`` apart on one axis; the same between a piece and the room's walls and fittings.
     Pairs in ``skip`` (related pieces) may stand at any distance."""
@@ -460,7 +460,8 @@ def _in_room_lit(m: cp_model.CpModel, pv: PieceVars, room: str) -> cp_model.IntV
     return b
 
 
-def decode(built: Built, solver: cp_model.CpSolver) -> dict[str, Placement]:
+def decode(built: Built,
+           solver: cp_model.CpSolver | cp_model.CpSolverSolutionCallback) -> dict[str, Placement]:
     """Placements of the built model's pieces in the solver's current solution."""
     out = {}
     for pv in built.pieces:

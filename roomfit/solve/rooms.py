@@ -138,9 +138,9 @@ def cover_rects(geom: BaseGeometry, step: int, inner: bool = False) -> list[Rect
     else:
         lo_x, hi_x = math.floor(x0), math.ceil(x1)
         lo_y, hi_y = math.floor(y0), math.ceil(y1)
-        cells = (hi_x - lo_x) * (hi_y - lo_y) / (step * step)
-        if cells > MAX_CELLS:
-            step = math.ceil(step * math.sqrt(cells / MAX_CELLS))
+        count = (hi_x - lo_x) * (hi_y - lo_y) / (step * step)
+        if count > MAX_CELLS:
+            step = math.ceil(step * math.sqrt(count / MAX_CELLS))
         xs = sorted({lo_x, hi_x} | set(range((lo_x // step + 1) * step, hi_x, step)))
         ys = sorted({lo_y, hi_y} | set(range((lo_y // step + 1) * step, hi_y, step)))
     nx, ny = len(xs) - 1, len(ys) - 1
@@ -148,9 +148,9 @@ def cover_rects(geom: BaseGeometry, step: int, inner: bool = False) -> list[Rect
     gx1 = np.repeat(np.array(xs[1:]), ny)
     gy0 = np.tile(np.array(ys[:-1]), nx)
     gy1 = np.tile(np.array(ys[1:]), nx)
-    cells = shapely.box(gx0, gy0, gx1, gy1)
-    area = shapely.area(shapely.intersection(cells, geom))
-    full = shapely.area(cells)
+    grid = shapely.box(gx0, gy0, gx1, gy1)
+    area = shapely.area(shapely.intersection(grid, geom))
+    full = shapely.area(grid)
     mask = ((area >= full - 1e-3) if inner else (area > 1e-3)).reshape(nx, ny)
     return _merge(mask, xs, ys)
 
@@ -163,13 +163,11 @@ def _walls(room: Room) -> list[Wall]:
         del i
         if a[0] == b[0]:
             lo, hi = sorted((a[1], b[1]))
-            mid = (a[0], (lo + hi) / 2)
-            inside_right = poly.contains(shapely.Point(mid[0] + 1, mid[1]))
+            inside_right = poly.contains(shapely.Point(a[0] + 1, (lo + hi) / 2))
             out.append(Wall("x", a[0], lo, hi, (-1, 0) if inside_right else (1, 0)))
         elif a[1] == b[1]:
             lo, hi = sorted((a[0], b[0]))
-            mid = ((lo + hi) / 2, a[1])
-            inside_up = poly.contains(shapely.Point(mid[0], mid[1] + 1))
+            inside_up = poly.contains(shapely.Point((lo + hi) / 2, a[1] + 1))
             out.append(Wall("y", a[1], lo, hi, (0, -1) if inside_up else (0, 1)))
     return out
 

@@ -210,10 +210,10 @@ def components(plan: Plan, specs: tuple[PieceSpec, ...]) -> list[tuple[list[str]
     for s in specs:
         root = find(_rooms_of(plan, s)[0])
         out.setdefault(root, ([], []))[1].append(s)
-    for r in plan.rooms:
-        root = find(r.id)
+    for room in plan.rooms:
+        root = find(room.id)
         if root in out:
-            out[root][0].append(r.id)
+            out[root][0].append(room.id)
     return list(out.values())
 
 
@@ -319,7 +319,7 @@ class _Collect(cp_model.CpSolverSolutionCallback):
         super().__init__()
         self.search, self.built = search, built
         self.solutions: list[tuple[float, dict[str, Placement]]] = []
-        self.verdicts: dict[int, object] = {}
+        self.verdicts: dict[int, Audit] = {}
         self.passed = False
 
     def on_solution_callback(self) -> None:
@@ -703,8 +703,8 @@ def _combine(plan: Plan, rules: RuleSet, searches: list[_Search], wanted: int,
         where: dict[str, Placement] = {}
         for f in picks:
             where.update(f.placements)
-        layout = tuple((p.id, where.get(p.id, p.placement)) for p in plan.furniture
-                       if where.get(p.id, p.placement) is not None)
+        layout = tuple((p.id, at) for p in plan.furniture
+                       if (at := where.get(p.id, p.placement)) is not None)
         counters.add("audits")
         furnished = plan.with_layout(layout)
         verdict = _audit(furnished, rules, widths=True)

@@ -376,13 +376,10 @@ def _routine_terms(m: cp_model.CpModel, pieces: list[PieceVars], plan: Plan,
         (px, py), reach = got
         tx_parts, ty_parts = [], []
         for (r, _), lit in pv.alts.items():
-            if r in reach:
-                pt = (px, py)
-            else:
+            pt: tuple[int, int] = (px, py)
+            if r not in reach:
                 way = doors.setdefault(r, _first_doors(plan, r))
-                pt = next((way[t] for t in reach if t in way), None)
-                if pt is None:
-                    pt = (px, py)
+                pt = next((way[t] for t in reach if t in way), pt)
             tx_parts.append(lit * (2 * pt[0]))
             ty_parts.append(lit * (2 * pt[1]))
         sx, sy = _centre2(pv)

@@ -41,10 +41,12 @@ class PieceVars:
         return (self.spec.width, self.spec.depth) if rot in (0, 180) else (self.spec.depth, self.spec.width)
 
     def width_expr(self) -> cp_model.LinearExpr:
-        return sum(lit * self.size(rot)[0] for (_, rot), lit in self.alts.items())
+        return cp_model.LinearExpr.weighted_sum(list(self.alts.values()),
+                                                [self.size(rot)[0] for _, rot in self.alts])
 
     def depth_expr(self) -> cp_model.LinearExpr:
-        return sum(lit * self.size(rot)[1] for (_, rot), lit in self.alts.items())
+        return cp_model.LinearExpr.weighted_sum(list(self.alts.values()),
+                                                [self.size(rot)[1] for _, rot in self.alts])
 
     def ends(self, m: cp_model.CpModel) -> tuple[cp_model.IntVar, cp_model.IntVar]:
         """Variables for the footprint's right and top edges (made once, then reused)."""
@@ -57,7 +59,7 @@ class PieceVars:
         return self._ends
 
     def in_room(self, room: str) -> cp_model.LinearExpr:
-        return sum(lit for (r, _), lit in self.alts.items() if r == room)
+        return cp_model.LinearExpr.sum([lit for (r, _), lit in self.alts.items() if r == room])
 
 
 @dataclass
