@@ -220,7 +220,7 @@ def _cmd_solve(args: argparse.Namespace) -> int:
         raise RoomfitError(Problem("arguments", "--candidates, --time-limit and --grid must be "
                                    "positive (and the time limit a finite number of seconds)"))
     options = SolveOptions(candidates=args.candidates, time_limit=args.time_limit, seed=args.seed,
-                           grid=args.grid)
+                           grid=args.grid, strict=args.strict)
     print(f"searching {args.plan} under {rules.id}: up to {options.candidates} candidates, "
           f"{options.time_limit:g} s", file=sys.stderr)
     with signals_kept():  # CP-SAT's own SIGINT handler must not swallow an interrupt
@@ -252,17 +252,20 @@ def _cmd_solve(args: argparse.Namespace) -> int:
         verdict = c.audit if c.audit is not None else audit(furnished, rules)
         ok = sum(f.ok for f in verdict.findings)
         gap = "optimal" if c.optimal else f"gap {c.gap:.0%}"
-        check = f"pass {ok}/{len(verdict.findings)}" if verdict.passed else "FAIL"
+        check = (f"pass {ok}/{len(verdict.findings)}" if verdict.passed else
+                 f"pass {ok}/{len(verdict.findings)} + building" if result.building else "FAIL")
         routes = c.routes if c.routes is not None else score_routes(furnished, rules)
         walking = f"{routes.walking_m_per_day:.0f} m/day"
         print(f"{c.rank + 1:>9}  {c.objective:>9g}  {gap:>13}  {walking:>10}  {check:<7}  "
               f"{', '.join(files)}")
     _print_ideas(plan, rules, result.candidates)
+    if result.building:
+        print(words.headline)
     for line in words.details:
         print(line)
     _finish_run(run, args, rules, result.status)
     print(CAUTION)
-    return EXIT_OK
+    return EXIT_OK if result.compliant else EXIT_FAIL
 
 
 def _run_folder(args: argparse.Namespace) -> RunFolder:
@@ -481,6 +484,9 @@ def build_parser() -> argparse.ArgumentParser:
                    help=f"random seed, 0 to {SEED_MAX}; same seed, same result")
     p.add_argument("--grid", type=_within(1, GRID_MAX_MM), default=50, metavar="MM",
                    help="grid (mm) for angled walls, door swings and the turning space (default 50)")
+    p.add_argument("--strict", action="store_true",
+                   help="a flat that fails a rule before any furniture is placed is impossible "
+                        "(default: furnish around such building findings, exit 1, not compliant)")
     p.add_argument("-o", "--output", metavar="DIR",
                    help="folder for the plan files and drawings (default ./<plan>-layouts/)")
     p.set_defaults(func=_cmd_solve)

@@ -113,6 +113,7 @@ class _Ctx:
     grid: int
     assume: bool
     relaxed: bool
+    no_turning: frozenset[str]
     groups: dict[str, cp_model.IntVar] = field(default_factory=dict)
 
     def group(self, name: str) -> cp_model.IntVar | None:
@@ -137,6 +138,7 @@ def build_model(
     geo: dict[str, RoomGeo] | None = None,
     routines: tuple[Trip, ...] | None = None,
     extra_terms: Callable[[cp_model.CpModel, list[PieceVars]], list] | None = None,
+    no_turning: frozenset[str] = frozenset(),
 ) -> Built:
     """Build the placement model for ``specs`` in ``rooms``.
 
@@ -148,11 +150,12 @@ def build_model(
     literal (for explaining infeasibility); ``objective`` adds the soft preferences, and
     ``extra_terms(model, pieces)`` (functional groups) more linear terms to minimise. Locked
     pieces keep their plan placement. ``routines`` are the daily trips the routine term uses
-    (default: the plan's own).
+    (default: the plan's own). Rooms in ``no_turning`` get no turning space (the bare room
+    cannot hold one: a building finding, furnished around).
     """
     m = cp_model.CpModel()
     geo = geo or {r: room_geometry(plan, rules, plan.room(r), grid) for r in rooms}
-    ctx = _Ctx(m, plan, rules, geo, grid, assume, relaxed)
+    ctx = _Ctx(m, plan, rules, geo, grid, assume, relaxed, no_turning)
     route = math.ceil(rules.get("route.width").exact_mm) + ROUTE_MARGIN
     pieces = [_piece_vars(ctx, spec) for spec in specs]
     prefs = load_preferences()
@@ -270,7 +273,7 @@ def _floor_rules(ctx: _Ctx, g: RoomGeo, fp: list, strengthen: bool) -> None:
     feet = [(ix, iy) for _, _, ix, iy in fp]
     boxes = feet + [_fixed_box(m, rect) for rect in g.hard]
     turning = ctx.rules.mm("turning.size")
-    if turning > 0:
+    if turning > 0 and g.room.id not in ctx.no_turning:
         boxes += _turning_boxes(m, g, turning, ctx.rules.text("turning.shape"), ctx.relaxed,
                                 ctx.group(f"turning.{g.room.id}"))
     _no_overlap(m, boxes)

@@ -3,7 +3,8 @@
 The three outcomes stay distinct: arrangements found; proven impossible (with the reason in
 plain words and the fixes that were tested); nothing found within the time limit, which is
 *not* a proof. When fewer candidates come back than were asked, the reason the search gives
-(``SolveResult.notes``) is part of the wording.
+(``SolveResult.notes``) is part of the wording. Arrangements furnished around building
+findings (``SolveResult.building``) are worded as *not* compliant, each finding with its change.
 """
 
 from __future__ import annotations
@@ -34,8 +35,15 @@ def describe(result: Any, time_limit: float) -> Outcome:
     n = len(result.candidates)
     ex = result.explanation
     notes = tuple(getattr(result, "notes", ()))
+    building = tuple(getattr(result, "building", ()))
+    notes = tuple(f"Building finding: {b.finding.message}" + (f". Change: {b.change}" if b.change
+                                                              else "") for b in building) + notes
     fixes = tuple(f"Try: {f}" for f in ex.fixes) if ex is not None else ()
     plural = "s" if n != 1 else ""
+    if result.status in ("found", "optimal") and n and building:
+        return Outcome("warning", f"{n} arrangement{plural} found around {len(building)} building "
+                       f"finding{'s' if len(building) != 1 else ''} that no furniture can cure: "
+                       "NOT a compliant flat. Every other rule passes.", notes)
     if result.status in ("found", "optimal") and n:
         best = (" (each the best possible for the scoring used, among arrangements that differ "
                 "enough from the ones before)" if result.status == "optimal" else "")

@@ -48,6 +48,7 @@ from roomfit.errors import Problem, RoomfitError
 from roomfit.plan.data import Layout, Placement, Plan, Trip
 from roomfit.rules.catalog import PieceSpec, resolve_pieces
 from roomfit.rules.sets import RuleSet
+from roomfit.solve.building import BuildingFinding, building_findings, excused, key
 from roomfit.solve.cuts import SoundCut, sound_cut
 from roomfit.solve.explain import Explanation, explain, precheck
 from roomfit.solve.groups import main_differs
@@ -119,13 +120,15 @@ _FAILS_BEFORE_CUT = 2
 class SolveOptions:
     """How to search: number of candidates, wall-clock limit (s) over all rounds, seed,
     ``workers`` (groups of rooms searched side by side, one CP-SAT worker each), and the grid
-    (mm) for angled walls, door arcs and the turning space."""
+    (mm) for angled walls, door arcs and the turning space. ``strict``: a bare apartment that
+    fails a rule is impossible to furnish (no furnishing around building findings)."""
 
     candidates: int = 3
     time_limit: float = 20.0
     seed: int = 0
     workers: int = 2
     grid: int = 50
+    strict: bool = False
 
 
 @dataclass(frozen=True)
@@ -175,14 +178,21 @@ class SolveStats:
 @dataclass(frozen=True)
 class SolveResult:
     """The outcome: a :class:`Status`, the candidates (best first), the explanation when
-    impossible, what the search did, and ``notes`` saying why fewer candidates came back
-    than were asked (or why none)."""
+    impossible, what the search did, ``notes`` saying why fewer candidates came back than
+    were asked (or why none), and the ``building`` findings the candidates were furnished
+    around (the bare apartment fails them; such a result is not a compliant flat)."""
 
     status: Status | str
     candidates: tuple[Candidate, ...]
     explanation: Explanation | None
     stats: SolveStats
     notes: tuple[str, ...] = ()
+    building: tuple[BuildingFinding, ...] = ()
+
+    @property
+    def compliant(self) -> bool:
+        """False when the candidates were furnished around building findings."""
+        return not self.building
 
     @property
     def found(self) -> bool:
@@ -287,12 +297,18 @@ def routines_of(plan: Plan) -> tuple[Trip, ...]:
     return default_routines(replace(plan, furniture=placed))
 
 
-def _audit(plan: Plan, rules: RuleSet, widths: bool = False):
+def _audit(plan: Plan, rules: RuleSet, widths: bool = False,
+           building: tuple[BuildingFinding, ...] = ()) -> Audit:
     """The judge (imported here to keep the import graph one-way). ``widths=False`` is the
-    cheap audit: every verdict the same, the widths of passing routes not measured."""
-    from roomfit.audit.check import audit
+    cheap audit: every verdict the same, the widths of passing routes not measured. Failures
+    that are ``building`` findings are left out (the layout is judged around them)."""
+    from roomfit.audit.check import Audit, audit
 
-    return audit(plan, rules, widths=widths)
+    result = audit(plan, rules, widths=widths)
+    if not building or result.passed:
+        return result
+    keys = {key(b.finding) for b in building}
+    return Audit(tuple(f for f in result.findings if f.ok or key(f) not in keys))
 
 
 @dataclass(frozen=True)
@@ -343,7 +359,7 @@ class _Search:
 
     def __init__(self, plan: Plan, rules: RuleSet, rooms: list[str], specs: list[PieceSpec],
                  options: SolveOptions, clock: _Clock, progress: Callable[[str], None] | None,
-                 counters: _Counters) -> None:
+                 counters: _Counters, building: tuple[BuildingFinding, ...] = ()) -> None:
         self.plan, self.rules, self.rooms, self.specs = plan, rules, rooms, specs
         self.options, self.clock, self.progress, self.counters = options, clock, progress, counters
         self.ids = {s.id for s in specs}
@@ -353,6 +369,7 @@ class _Search:
         self.work_share = 1.0
         self.first: float | None = None  # seconds to this group's first valid layout
         self.built: Built | None = None
+        self.building = building
         self.stage = 0
         self.stages = self._stages()
         self.sound: list[_Cut] = []  # every sound cut so far, for the last stage
@@ -441,7 +458,9 @@ class _Search:
         strengthen, relaxed, _ = self.stages[stage]
         self.built = build_model(self.plan, self.rules, self.specs, self.rooms, self.options.grid,
                                  strengthen=strengthen, relaxed=relaxed, geo=self.geo,
-                                 routines=routines_of(self.plan))
+                                 routines=routines_of(self.plan), no_turning=frozenset(
+                                     b.finding.room for b in self.building
+                                     if b.finding.rule == "turning.space" and b.finding.room))
         movable = [pv for pv in self.built.pieces if not pv.locked]
         for f in self.found:
             self._forbid_near(self.built, movable, f.placements)
@@ -507,7 +526,7 @@ class _Search:
         (with ``keep``: only those movable pieces, and the locked ones)."""
         self.counters.add("audits")
         ids = self.ids if keep is None else {i for i in self.ids if i in keep or i in self.locked}
-        return _audit(_only(self.plan, ids, where), self.rules)
+        return _audit(_only(self.plan, ids, where), self.rules, building=self.building)
 
     def _cut(self, built: Built, movable: list, where: dict[str, Placement], result) -> None:
         """Forbid ``where`` and the layouts the audit's verdict on it settles (a sound cut,
@@ -593,15 +612,25 @@ def solve(plan: Plan, rules: RuleSet, options: SolveOptions | None = None,
     early = precheck(plan, rules, specs)
     if early is not None:
         return SolveResult("impossible", (), early, stats())
-    bare = _bare_faults(plan, rules, counters)
-    if bare is not None:
-        return SolveResult("impossible", (), bare, stats())
+    counters.add("audits")
+    kept = tuple(p for p in plan.furniture if p.locked and p.placement is not None)
+    bare = _audit(replace(plan, furniture=kept), rules)
+    building: tuple[BuildingFinding, ...] = ()
+    if not bare.passed:
+        around = None if options.strict else building_findings(plan, rules, bare)
+        if around is None:
+            return SolveResult(Status.IMPOSSIBLE, (), _bare_faults(plan, rules, bare), stats())
+        building = around
+        if progress is not None:
+            progress(f"furnishing around {len(building)} building finding(s): "
+                     + "; ".join(b.finding.message for b in building))
 
-    if not groups:  # nothing to place: the bare apartment (with its locked pieces) passed
-        return SolveResult("optimal", (Candidate(plan.layout, 0.0, 0.0, True, 0),), None, stats())
+    if not groups:  # nothing to place: the bare apartment (with its locked pieces) is the answer
+        return SolveResult(Status.OPTIMAL, (Candidate(plan.layout, 0.0, 0.0, True, 0, None, bare),),
+                           None, stats(), building=building)
     lanes = max(1, options.workers)
-    searches += [_Search(plan, rules, rooms, group_specs, options, clock, progress, counters)
-                 for rooms, group_specs in groups]
+    searches += [_Search(plan, rules, rooms, group_specs, options, clock, progress, counters,
+                         building) for rooms, group_specs in groups]
     for s in searches:
         s.work_share = min(1.0, lanes / len(groups))
 
@@ -640,17 +669,18 @@ def solve(plan: Plan, rules: RuleSet, options: SolveOptions | None = None,
         if s.impossible:
             expl = (_exhausted(plan, s) if s.sound else
                     explain(plan, rules, group_specs, rooms, options, clock.deadline))
-            return SolveResult(Status.IMPOSSIBLE, (), expl, stats())
+            return SolveResult(Status.IMPOSSIBLE, (), expl, stats(), building=building)
     if not all(s.found for s in searches):
-        return SolveResult(Status.TIMEOUT, (), None, stats())
-    candidates = _combine(plan, rules, searches, options.candidates, counters)
+        return SolveResult(Status.TIMEOUT, (), None, stats(), building=building)
+    candidates = _combine(plan, rules, searches, options.candidates, counters, building)
     if not candidates:
         return SolveResult(Status.TIMEOUT, (), None, stats(),
-                           ("every combined arrangement failed the audit of the whole flat",))
+                           ("every combined arrangement failed the audit of the whole flat",),
+                           building)
     # "optimal" when every candidate is proven optimal (under the diversity rules)
     status = Status.OPTIMAL if all(c.optimal for c in candidates) else Status.FOUND
     return SolveResult(status, tuple(candidates), None, stats(),
-                       _fewer(plan, searches, options.candidates, len(candidates)))
+                       _fewer(plan, searches, options.candidates, len(candidates)), building)
 
 
 #: The solver places furniture only within this many mm of the plan's origin (1 km): the
@@ -693,9 +723,10 @@ def _fewer(plan: Plan, searches: list[_Search], wanted: int, got: int) -> tuple[
 
 
 def _combine(plan: Plan, rules: RuleSet, searches: list[_Search], wanted: int,
-             counters: _Counters) -> list[Candidate]:
+             counters: _Counters, building: tuple[BuildingFinding, ...]) -> list[Candidate]:
     """Candidate i takes the i-th layout of every group (the last one where a group has fewer);
-    every combined layout is audited once more on the whole plan."""
+    every combined layout is audited once more on the whole plan (and must pass every rule
+    but the ``building`` findings)."""
     out: list[Candidate] = []
     most = max(len(s.found) for s in searches)
     for i in range(min(wanted, most)):
@@ -708,7 +739,7 @@ def _combine(plan: Plan, rules: RuleSet, searches: list[_Search], wanted: int,
         counters.add("audits")
         furnished = plan.with_layout(layout)
         verdict = _audit(furnished, rules, widths=True)
-        if not verdict.passed:
+        if not (verdict.passed or excused(verdict, building)):
             continue
         routes = score_routes(furnished, rules)
         out.append(Candidate(layout, sum(f.objective for f in picks), sum(f.bound for f in picks),
@@ -736,14 +767,10 @@ def _exhausted(plan: Plan, s: _Search) -> Explanation:
         pieces, rules, ())
 
 
-def _bare_faults(plan: Plan, rules: RuleSet, counters: _Counters) -> Explanation | None:
-    """The apartment without its movable furniture already fails the audit: no arrangement
-    can pass, so say so (locked pieces stay, they cannot be moved)."""
+def _bare_faults(plan: Plan, rules: RuleSet, result: Audit) -> Explanation:
+    """The apartment without its movable furniture already fails the audit ``result``: no
+    arrangement can pass, so say so (locked pieces stay, they cannot be moved)."""
     kept = tuple(p for p in plan.furniture if p.locked and p.placement is not None)
-    counters.add("audits")
-    result = _audit(replace(plan, furniture=kept), rules)
-    if result.passed:
-        return None
     fails = result.failures
     ids = tuple(dict.fromkeys(i for f in fails for i in f.pieces))
     rule_ids = tuple(dict.fromkeys(f.rule for f in fails))
