@@ -50,7 +50,7 @@ def describe(result: Any, time_limit: float) -> Outcome:
         return Outcome("success", f"{n} arrangement{plural} found{best}.", notes)
     if result.status == "impossible":
         summary = ex.summary if ex is not None else "The furniture cannot fit under these rules."
-        return Outcome("error", f"No arrangement exists: {summary}", fixes)
+        return Outcome("error", f"No arrangement exists: {summary}", fixes + notes)
     return Outcome("warning", f"No arrangement that passes every rule was found within "
                    f"{time_limit:g} s. This is NOT proven impossible: allow more time, or "
                    "remove or lock a piece and try again.", fixes + notes)

@@ -625,9 +625,12 @@ def solve(plan: Plan, rules: RuleSet, options: SolveOptions | None = None,
             progress(f"furnishing around {len(building)} building finding(s): "
                      + "; ".join(b.finding.message for b in building))
 
-    if not groups:  # nothing to place: the bare apartment (with its locked pieces) is the answer
+    if not groups and building:  # nothing to furnish around the findings: say what fails
+        return SolveResult(Status.IMPOSSIBLE, (), _bare_faults(plan, rules, bare), stats(),
+                           building=building)
+    if not groups:  # nothing to place: the bare apartment (with its locked pieces) passed
         return SolveResult(Status.OPTIMAL, (Candidate(plan.layout, 0.0, 0.0, True, 0, None, bare),),
-                           None, stats(), building=building)
+                           None, stats())
     lanes = max(1, options.workers)
     searches += [_Search(plan, rules, rooms, group_specs, options, clock, progress, counters,
                          building) for rooms, group_specs in groups]
