@@ -173,3 +173,26 @@ def test_fewer_candidates_than_asked_come_with_the_reason() -> None:
         fresh = audit(plan.with_layout(c.layout), rules)
         assert c.audit is not None and c.audit.findings == fresh.findings
         assert c.routes is not None and c.routes.rank_key == c.route_key
+
+
+def test_every_fix_shown_is_confirmed_by_a_solve_and_a_false_one_is_dropped() -> None:
+    # ISO 21542 asks 1500 mm of clear floor beside the bed: a 1600 mm bed with 1500 + 900 mm
+    # side zones needs 4000 mm, the room is 3600 mm wide: provably impossible
+    from roomfit.solve.explain import Explanation, Fix
+    from roomfit.solve.search import _Clock, _confirmed
+
+    text = _bedroom(3600, "iso-21542", wardrobe=True)
+    plan = loads_plan(text, "edge.toml")
+    rules = rules_for(plan)
+    result = solve(plan, rules, SolveOptions(candidates=1, time_limit=20, seed=0))
+    assert result.status == "impossible" and result.explanation is not None
+    assert result.explanation.fixes and not result.explanation.trials
+    for fix in result.explanation.fixes:  # a re-run with the fix made finds an arrangement
+        if fix.startswith("without the Double bed"):
+            fixed = replace(plan, furniture=tuple(p for p in plan.furniture if p.id != "bed1"))
+            again = solve(fixed, rules, SolveOptions(candidates=1, time_limit=20, seed=0))
+            assert again.candidates
+    # leaving out the wardrobe does not make the bed fit: that fix is never shown
+    wrong = Explanation("x", ("wr",), (), (), (Fix("without the wardrobe it fits", "wr"),))
+    checked = _confirmed(plan, rules, SolveOptions(candidates=1, time_limit=5), wrong, _Clock(5))
+    assert checked.fixes == () and checked.trials == ()

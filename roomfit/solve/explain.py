@@ -31,18 +31,32 @@ from roomfit.rules.catalog import PieceSpec, load_catalog
 from roomfit.rules.sets import RuleSet
 from roomfit.solve.model import build_model, tune
 
-__all__ = ["Explanation", "precheck", "explain"]
+__all__ = ["Explanation", "Fix", "precheck", "explain"]
+
+
+@dataclass(frozen=True)
+class Fix:
+    """A change that may make the furniture fit: leave out piece ``piece`` (``swap`` None)
+    or give it the catalogue type ``swap``; ``text`` says it in plain words."""
+
+    text: str
+    piece: str
+    swap: str | None = None
 
 
 @dataclass(frozen=True)
 class Explanation:
     """Why nothing fits: a plain-words ``summary``, the ``pieces`` and rule ids in the clash,
-    and ``fixes`` that were tested and make it fit (empty when none was found)."""
+    ``fixes`` that an actual solve confirmed (empty when none was), ``trials``: the fixes the
+    model suggests, not yet confirmed (``roomfit.solve.search`` solves each before it shows
+    it), and general ``advice`` that is no tested fix."""
 
     summary: str
     pieces: tuple[str, ...]
     rules: tuple[str, ...]
     fixes: tuple[str, ...]
+    trials: tuple[Fix, ...] = ()
+    advice: tuple[str, ...] = ()
 
 
 _RULE_OF = {"piece": "piece.inside", "zone": "zone.clear", "wall": "wall.against",
@@ -66,7 +80,8 @@ def precheck(plan: Plan, rules: RuleSet, specs: tuple[PieceSpec, ...]) -> Explan
             return Explanation(
                 f"The {spec.label} ({spec.width} x {spec.depth} mm) is larger than the room it "
                 f"may stand in, whichever way it is turned ({where}).",
-                (spec.id,), ("piece.inside",), (f"without the {spec.label} the rest may fit",))
+                (spec.id,), ("piece.inside",), (),
+                (Fix(f"without the {spec.label} the rest fits", spec.id),))
     shapes = door_shapes(plan, rules)
     for room in plan.rooms:
         mine = [s for s in specs if s.rooms == (room.id,)]
@@ -83,7 +98,9 @@ def precheck(plan: Plan, rules: RuleSet, specs: tuple[PieceSpec, ...]) -> Explan
                 f"The furniture for the {room.label} covers {need / 1e6:.2f} m2 but only "
                 f"{free / 1e6:.2f} m2 of its floor is left once the fittings, their use zones and "
                 f"the door clearances are kept free.",
-                tuple(s.id for s in mine), ("piece.overlap", "door.swing_clear"),
+                tuple(s.id for s in mine), ("piece.overlap", "door.swing_clear"), (),
+                tuple(Fix(f"without the {s.label} it fits", s.id)
+                      for s in sorted(mine, key=lambda s: -s.width * s.depth)[:3]),
                 ("fewer or smaller pieces in the " + room.label,))
     return None
 
@@ -153,26 +170,26 @@ def explain(plan: Plan, rules: RuleSet, specs: list[PieceSpec], rooms: list[str]
     pieces = tuple(dict.fromkeys(g.partition(".")[2] for g in core if g.partition(".")[0]
                                  in ("piece", "zone", "wall")))
     rule_ids = tuple(dict.fromkeys(_RULE_OF[g.partition(".")[0]] for g in core))
-    fixes: list[str] = []
+    fixes: list[Fix] = []
     for pid in pieces:
         if time.monotonic() > deadline:
             break
         rest = [g for g in everything if g != f"piece.{pid}"]
         if _check(built, options, rest, deadline) in (cp_model.FEASIBLE, cp_model.OPTIMAL):
-            fixes.append(f"without the {by_id[pid].label} it fits")
+            fixes.append(Fix(f"without the {by_id[pid].label} it fits", pid))
     fixes += _smaller(plan, rules, specs, rooms, options, pieces, deadline)
     clash = "; ".join(_describe(plan, by_id, rules, g) for g in core)
     summary = (f"The furniture cannot be arranged in the {room_names}: these cannot all be met "
                f"together: {clash}. (Searched over positions in whole millimetres; angled walls and "
                f"door swings are covered on a {options.grid} mm grid.)")
-    return Explanation(summary, pieces, rule_ids, tuple(fixes))
+    return Explanation(summary, pieces, rule_ids, (), tuple(fixes))
 
 
 def _smaller(plan: Plan, rules: RuleSet, specs: list[PieceSpec], rooms: list[str], options,
-             pieces: tuple[str, ...], deadline: float) -> list[str]:
+             pieces: tuple[str, ...], deadline: float) -> list[Fix]:
     """Try the next smaller catalogue types of each clashing piece's category."""
     catalog = load_catalog()
-    out: list[str] = []
+    out: list[Fix] = []
     for pid in pieces:
         spec = next(s for s in specs if s.id == pid)
         if spec.type not in catalog:
@@ -195,8 +212,8 @@ def _smaller(plan: Plan, rules: RuleSet, specs: list[PieceSpec], rooms: list[str
             solver.parameters.max_time_in_seconds = max(0.05, min(3.0, deadline - time.monotonic()))
             tune(solver.parameters)
             if solver.solve(built.model) in (cp_model.FEASIBLE, cp_model.OPTIMAL):
-                out.append(f"a {t.label} ({t.width} x {t.depth} mm) instead of the {spec.label} "
-                           f"({spec.width} x {spec.depth} mm) fits")
+                out.append(Fix(f"a {t.label} ({t.width} x {t.depth} mm) instead of the "
+                               f"{spec.label} ({spec.width} x {spec.depth} mm) fits", pid, t.id))
                 break
     return out
 

@@ -39,6 +39,7 @@ def describe(result: Any, time_limit: float) -> Outcome:
     notes = tuple(f"Building finding: {b.finding.message}" + (f". Change: {b.change}" if b.change
                                                               else "") for b in building) + notes
     fixes = tuple(f"Try: {f}" for f in ex.fixes) if ex is not None else ()
+    fixes += tuple(f"Advice: {a}" for a in ex.advice) if ex is not None else ()
     plural = "s" if n != 1 else ""
     if result.status in ("found", "optimal") and n and building:
         return Outcome("warning", f"{n} arrangement{plural} found around {len(building)} building "

@@ -585,10 +585,12 @@ def _interchangeable(spec: PieceSpec) -> PieceSpec:
 
 
 def solve(plan: Plan, rules: RuleSet, options: SolveOptions | None = None,
-          progress: Callable[[str], None] | None = None) -> SolveResult:
+          progress: Callable[[str], None] | None = None, *, confirm: bool = True) -> SolveResult:
     """Find up to ``options.candidates`` checker-passing arrangements of ``plan``'s furniture.
 
     ``progress``, when given, receives one line per event (candidate found, cut added).
+    With ``confirm``, every fix an explanation proposes is solved (``_confirmed``) before it
+    is shown; the solves that confirm fixes run with ``confirm=False``.
     """
     options = options or SolveOptions()
     _within_reach(plan)
@@ -611,7 +613,8 @@ def solve(plan: Plan, rules: RuleSet, options: SolveOptions | None = None,
 
     early = precheck(plan, rules, specs)
     if early is not None:
-        return SolveResult("impossible", (), early, stats())
+        early = _confirmed(plan, rules, options, early, clock) if confirm else early
+        return SolveResult(Status.IMPOSSIBLE, (), early, stats())
     counters.add("audits")
     kept = tuple(p for p in plan.furniture if p.locked and p.placement is not None)
     bare = _audit(replace(plan, furniture=kept), rules)
@@ -672,9 +675,10 @@ def solve(plan: Plan, rules: RuleSet, options: SolveOptions | None = None,
         if s.impossible:
             expl = (_exhausted(plan, s) if s.sound else
                     explain(plan, rules, group_specs, rooms, options, clock.deadline))
+            expl = _confirmed(plan, rules, options, expl, clock) if confirm else expl
             return SolveResult(Status.IMPOSSIBLE, (), expl, stats(), building=building)
     if not all(s.found for s in searches):
-        return SolveResult(Status.TIMEOUT, (), None, stats(), building=building)
+        return SolveResult(Status.TIMEOUT, (), None, stats(), _held_up(plan, searches), building)
     candidates = _combine(plan, rules, searches, options.candidates, counters, building)
     if not candidates:
         return SolveResult(Status.TIMEOUT, (), None, stats(),
@@ -702,6 +706,33 @@ def _within_reach(plan: Plan) -> None:
                 f"plan's origin; the solver furnishes rooms within {MAX_REACH_MM // 1000} m of it",
                 "check the plan's unit (a length in mm read as m is 1000 times too long)"),
                 plan.name)
+
+
+def _held_up(plan: Plan, searches: list[_Search]) -> tuple[str, ...]:
+    """What held up each group of rooms that found no layout in time: its rooms and pieces,
+    the rules its failed layouts broke and the pieces named most often next to a failure,
+    and the pieces allowed in several rooms (they join rooms into one larger search)."""
+    out = []
+    for s in searches:
+        if s.found:
+            continue
+        rooms = ", ".join(plan.room(r).label for r in s.rooms)
+        named: dict[str, int] = {}
+        for c in s.sound:
+            for p in c.named:
+                named[p] = named.get(p, 0) + 1
+        top = sorted(named, key=lambda p: -named[p])[:3]
+        line = (f"The search in the {rooms} ({len(s.specs)} pieces) found no layout that passes "
+                f"in time")
+        if s.sound:
+            line += (f": {len(s.sound)} layouts failed the audit ({', '.join(sorted(s.failed_rules))}), "
+                     f"most often next to {', '.join(top)}")
+        multi = [f"{sp.label or sp.id} ({' or '.join(plan.room(r).label for r in sp.rooms)})"
+                 for sp in s.specs if len(sp.rooms) > 1 and sp.id not in s.locked]
+        if multi:
+            line += f"; allowed in several rooms, these join the rooms into one search: {', '.join(multi)}"
+        out.append(line + ".")
+    return tuple(out)
 
 
 def _fewer(plan: Plan, searches: list[_Search], wanted: int, got: int) -> tuple[str, ...]:
@@ -770,6 +801,35 @@ def _exhausted(plan: Plan, s: _Search) -> Explanation:
         pieces, rules, ())
 
 
+#: Fixes an explanation proposes that are solved at most, and seconds each solve may take.
+_TRIALS = 4
+_TRIAL_SECONDS = 5.0
+
+
+def _confirmed(plan: Plan, rules: RuleSet, options: SolveOptions, expl: Explanation,
+               clock: _Clock) -> Explanation:
+    """``expl`` with only the fixes an actual solve confirms (an arrangement that passes the
+    audit), each solved with the change made to the plan: the piece left out, or given the
+    smaller catalogue type. Confirming may take a few seconds beyond a search that ended
+    early with a proof (up to ``_TRIALS`` solves within the time limit, at least 1 s each)."""
+    out: list[str] = []
+    for fix in expl.trials[:_TRIALS]:
+        left = max(clock.deadline - time.monotonic(), 1.0)
+        if fix.swap is None:
+            furniture = tuple(p for p in plan.furniture if p.id != fix.piece)
+        else:
+            furniture = tuple(replace(p, type=fix.swap, width=None, depth=None, height=None)
+                              if p.id == fix.piece else p for p in plan.furniture)
+        trial = replace(plan, furniture=furniture,
+                        routines=tuple(t for t in plan.routines
+                                       if fix.swap is not None or fix.piece not in (t.origin, t.target)))
+        seconds = min(_TRIAL_SECONDS, options.time_limit, left)
+        got = solve(trial, rules, replace(options, candidates=1, time_limit=seconds), confirm=False)
+        if got.candidates and got.compliant:
+            out.append(f"{fix.text} (solved: an arrangement then passes every rule)")
+    return replace(expl, fixes=tuple(out), trials=())
+
+
 def _bare_faults(plan: Plan, rules: RuleSet, result: Audit) -> Explanation:
     """The apartment without its movable furniture already fails the audit ``result``: no
     arrangement can pass, so say so (locked pieces stay, they cannot be moved)."""
@@ -784,6 +844,6 @@ def _bare_faults(plan: Plan, rules: RuleSet, result: Audit) -> Explanation:
     return Explanation(
         f"The apartment does not pass the {rules.label} rules even before the furniture is "
         f"placed{where}, so no arrangement can: {listed}.",
-        ids, rule_ids,
+        ids, rule_ids, (), (),
         ((f"unlock or move {', '.join(locked)}",) if locked else ())
         + ("change the plan (doors, fittings) or choose the rule set that governs this home",))
