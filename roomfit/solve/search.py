@@ -509,6 +509,10 @@ class _Search:
                     accepted = _Found(where, obj, bound, optimal and k == 0)
                     break
                 self._cut(built, movable, where, result)
+            if accepted is None:  # a layout the callback saw pass, before the best ones
+                accepted = next((_Found(w, o, bound, False) for o, w in reversed(seen.solutions)
+                                 if (v := seen.verdicts.get(id(w))) is not None and v.passed),
+                                None)
             if accepted is None:
                 continue
             self.found.append(accepted)
