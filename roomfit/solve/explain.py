@@ -36,12 +36,14 @@ __all__ = ["Explanation", "Fix", "precheck", "explain"]
 
 @dataclass(frozen=True)
 class Fix:
-    """A change that may make the furniture fit: leave out piece ``piece`` (``swap`` None)
-    or give it the catalogue type ``swap``; ``text`` says it in plain words."""
+    """A change that may make the furniture fit: leave out piece ``piece`` (``swap`` None),
+    give it the catalogue type ``swap``, or, with ``unlock``, free a locked piece to move;
+    ``text`` says it in plain words."""
 
     text: str
     piece: str
     swap: str | None = None
+    unlock: bool = False
 
 
 @dataclass(frozen=True)

@@ -50,7 +50,7 @@ from roomfit.rules.catalog import PieceSpec, resolve_pieces
 from roomfit.rules.sets import RuleSet
 from roomfit.solve.building import BuildingFinding, building_findings, excused, key
 from roomfit.solve.cuts import SoundCut, sound_cut
-from roomfit.solve.explain import Explanation, explain, precheck
+from roomfit.solve.explain import Explanation, Fix, explain, precheck
 from roomfit.solve.groups import main_differs
 from roomfit.solve.model import build_model, decode, differs, hint, tune
 from roomfit.solve.rooms import room_geometry
@@ -626,7 +626,9 @@ def solve(plan: Plan, rules: RuleSet, options: SolveOptions | None = None,
     if not bare.passed:
         around = None if options.strict else building_findings(plan, rules, bare)
         if around is None:
-            return SolveResult(Status.IMPOSSIBLE, (), _bare_faults(plan, rules, bare), stats())
+            expl = _bare_faults(plan, rules, bare)
+            expl = _confirmed(plan, rules, options, expl, clock) if confirm else expl
+            return SolveResult(Status.IMPOSSIBLE, (), expl, stats())
         building = around
         if progress is not None:
             progress(f"furnishing around {len(building)} building finding(s): "
@@ -823,14 +825,17 @@ def _confirmed(plan: Plan, rules: RuleSet, options: SolveOptions, expl: Explanat
         if left < 0.5:  # the time limit holds: a fix not confirmed in time is not shown
             untried += 1
             continue
-        if fix.swap is None:
+        if fix.unlock:
+            furniture = tuple(replace(p, locked=False) if p.id == fix.piece else p
+                              for p in plan.furniture)
+        elif fix.swap is None:
             furniture = tuple(p for p in plan.furniture if p.id != fix.piece)
         else:
             furniture = tuple(replace(p, type=fix.swap, width=None, depth=None, height=None)
                               if p.id == fix.piece else p for p in plan.furniture)
         trial = replace(plan, furniture=furniture,
-                        routines=tuple(t for t in plan.routines
-                                       if fix.swap is not None or fix.piece not in (t.origin, t.target)))
+                        routines=tuple(t for t in plan.routines if fix.swap is not None or fix.unlock
+                                       or fix.piece not in (t.origin, t.target)))
         seconds = min(_TRIAL_SECONDS, options.time_limit, left)
         got = solve(trial, rules, replace(options, candidates=1, time_limit=seconds), confirm=False)
         if got.candidates and got.compliant:
@@ -854,6 +859,5 @@ def _bare_faults(plan: Plan, rules: RuleSet, result: Audit) -> Explanation:
     return Explanation(
         f"The apartment does not pass the {rules.label} rules even before the furniture is "
         f"placed{where}, so no arrangement can: {listed}.",
-        ids, rule_ids, (), (),
-        ((f"unlock or move {', '.join(locked)}",) if locked else ())
-        + ("change the plan (doors, fittings) or choose the rule set that governs this home",))
+        ids, rule_ids, (), tuple(Fix(f"unlock or move {p}", p, unlock=True) for p in locked),
+        ("change the plan (doors, fittings) or choose the rule set that governs this home",))
