@@ -152,7 +152,9 @@ class Piece:
     it may stand in (one entry: assigned). ``placement`` is where it stands now (the as-is
     arrangement, audited by the checker); ``locked`` keeps it there when solving.
     ``access`` picks the long sides of a bed kept free: ``"both"``, ``"left"`` or ``"right"``
-    (None: the catalogue's default).
+    (None: the catalogue's default). A ``custom`` piece may say what a catalogue type says:
+    ``category`` (a catalogue category, so rules for beds or seats apply), ``zones`` (side,
+    zone kind) pairs whose depths the rule set gives, and the functional ``groups`` it joins.
     """
 
     id: str
@@ -165,6 +167,9 @@ class Piece:
     placement: Placement | None = None
     locked: bool = False
     access: str | None = None
+    category: str = ""
+    zones: tuple[tuple[str, str], ...] = ()
+    groups: tuple[str, ...] = ()
 
 
 @dataclass(frozen=True)

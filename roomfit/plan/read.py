@@ -42,7 +42,7 @@ from roomfit.plan.limits import (
 )
 from roomfit.plan.openings import openings_apart, read_doors, read_windows
 from roomfit.plan.units import UNITS
-from roomfit.rules.catalog import load_catalog
+from roomfit.rules.catalog import GROUPS, SIDES, load_catalog, zone_kinds
 from roomfit.rules.sets import load_ruleset
 
 __all__ = ["read_plan", "loads_plan", "plan_places"]
@@ -52,7 +52,7 @@ _TOP_KEYS = {VERSION_KEY, "name", "client", "address", "notes", "units", "rules"
 _ROOM_KEYS = {"id", "label", "use", "outline"}
 _FIXTURE_KEYS = {"id", "room", "kind", "label", "outline", "height", "zone"}
 _PIECE_KEYS = {"id", "type", "room", "rooms", "label", "width", "depth", "height", "placement",
-               "locked", "access"}
+               "locked", "access", "category", "zones", "groups"}
 _PLACEMENT_KEYS = {"x", "y", "rotation", "room"}
 _RULE_KEYS = {"set", "overrides"}
 _TRIP_KEYS = {"from", "to", "per_day", "label", "night"}
@@ -139,6 +139,42 @@ def _catalog_ids() -> frozenset[str]:
     return frozenset(load_catalog())
 
 
+def _read_custom_use(r: FieldReader, t: dict, f: str, ptype: str | None
+                     ) -> tuple[str, tuple[tuple[str, str], ...], tuple[str, ...]]:
+    """A custom piece's own ``category``, use ``zones`` (a table side -> zone kind) and
+    functional ``groups``, checked against the catalogue's categories, sides, zone kinds and
+    groups; a catalogue type may not redefine them."""
+    given = [k for k in ("category", "zones", "groups") if k in t]
+    if given and ptype not in (None, "custom"):
+        r.add(f"{f}.{given[0]}", f"only a custom piece declares {given[0]}; the type "
+              f"{ptype!r} has its own", "leave it out, or use type = \"custom\"")
+        return "", (), ()
+    cat = load_catalog()
+    category = r.text(t, "category", f, default="") or ""
+    if category and category not in {c.category for c in cat.values()}:
+        r.add(f"{f}.category", f"unknown category {category!r}",
+              "use a category of `roomfit catalog`, e.g. bed, sofa, armchair")
+        category = ""
+    zones: list[tuple[str, str]] = []
+    raw = t.get("zones", {})
+    kinds = zone_kinds(cat)
+    if not isinstance(raw, dict):
+        r.add(f"{f}.zones", f"expected a table such as {{ left = \"bed_side\" }}, found {kind_of(raw)}")
+        raw = {}
+    for side, kind in raw.items():
+        if side not in SIDES:
+            r.add(f"{f}.zones.{side}", f"unknown side {side!r}", f"use one of {', '.join(SIDES)}")
+        elif kind not in kinds:
+            r.add(f"{f}.zones.{side}", f"unknown zone kind {kind!r}", f"use one of {', '.join(kinds)}")
+        else:
+            zones.append((side, kind))
+    groups = t.get("groups", [])
+    if not isinstance(groups, list) or not all(g in GROUPS for g in groups):
+        r.add(f"{f}.groups", f"expected a list of groups out of {', '.join(GROUPS)}")
+        groups = []
+    return category, tuple(zones), tuple(groups)
+
+
 def _read_furniture(r: FieldReader, data: dict, rooms: dict[str, Room]) -> list[Piece]:
     catalog = _catalog_ids()
     out = []
@@ -193,12 +229,13 @@ def _read_furniture(r: FieldReader, data: dict, rooms: dict[str, Room]) -> list[
             placement = _read_placement(r, t["placement"], f"{f}.placement", allowed, rooms)
         elif locked:
             r.add(f"{f}.locked", "a locked piece needs a placement", "add placement = {x, y, rotation, room}")
+        use = _read_custom_use(r, t, f, ptype)
         if pid is None or ptype is None or label is None or not allowed:
             continue
         if any(rid not in rooms for rid in allowed):
             continue
         out.append(Piece(pid, ptype, tuple(allowed), label, sizes["width"], sizes["depth"],
-                         sizes["height"], placement, bool(locked), access))
+                         sizes["height"], placement, bool(locked), access, *use))
     return out
 
 

@@ -101,6 +101,12 @@ def _piece_to_dict(p: Piece, u: str) -> dict[str, Any]:
             d[k] = _out(getattr(p, k), u)
     if p.access is not None:
         d["access"] = p.access
+    if p.category:
+        d["category"] = p.category
+    if p.zones:
+        d["zones"] = dict(p.zones)
+    if p.groups:
+        d["groups"] = list(p.groups)
     if p.placement is not None:
         pl = p.placement
         d["placement"] = {"x": _out(pl.x, u), "y": _out(pl.y, u), "rotation": pl.rotation,

@@ -255,13 +255,17 @@ def resolve_piece(
 ) -> PieceSpec:
     """Combine a piece with its catalogue type and the rule set's zone depths.
 
-    A ``custom`` piece has no use zones; its sizes must all be given (the plan reader checks
-    that). ``access`` (beds) picks which long sides keep a zone, see ``_long_side_zones``.
+    A ``custom`` piece has the use zones, category and groups its plan entry declares (none
+    by default); its sizes must all be given (the plan reader checks that). ``access``
+    (beds) picks which long sides keep a zone, see ``_long_side_zones``.
     """
     if piece.type == "custom":
         assert piece.width and piece.depth and piece.height is not None
-        return PieceSpec(piece.id, piece.label or piece.id, "custom", "custom", piece.width,
-                         piece.depth, piece.height, False, (), (), piece.rooms)
+        zones = tuple(ZoneReq(side, kind, rules.mm(f"zone.{kind}"), f"zone.{kind}")
+                      for side, kind in piece.zones)
+        return PieceSpec(piece.id, piece.label or piece.id, "custom", piece.category or "custom",
+                         piece.width, piece.depth, piece.height, False, zones, (), piece.rooms,
+                         groups=piece.groups)
     if piece.type not in catalog:
         raise PlanError(Problem(field + ".type", f"unknown furniture type {piece.type!r}",
                                 "run `roomfit catalog` to list the types, or use type = \"custom\""))
