@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import fnmatch
 import math
+from collections.abc import Sequence
 from dataclasses import dataclass, replace
 
 from shapely import LineString, Point, Polygon, union_all
@@ -21,12 +22,14 @@ from roomfit.plan.floor_base import (
     Note,
     Placed,
     clean_outline,
+    largest_polygon,
     main_angle,
     make_rooms,
     plan_unit,
     rooms_from_walls,
     slug,
     turn,
+    unique_id,
 )
 from roomfit.plan.floor_doors import DoorIn, make_door, open_links, stair_arrival
 from roomfit.plan.floor_items import ThingIn, WindowIn, make_things, make_windows
@@ -53,14 +56,18 @@ class Imported:
         return self.placed.angle
 
 
-def _wall_depth(walls: list[FloorWall], turned: list[Polygon], centre: tuple[float, float]) -> float:
+def _wall_depth(walls: Sequence[FloorWall], turned: list[Polygon], centre: tuple[float, float]) -> float:
     """Thickness (mm) of the wall nearest ``centre``: its layers', else its footprint's width."""
     if not walls:
         return 200.0
     i = min(range(len(walls)), key=lambda k: turned[k].distance(Point(centre)))
-    if walls[i].layers_thickness:
-        return float(walls[i].layers_thickness)
-    ring = list(turned[i].minimum_rotated_rectangle.exterior.coords)
+    layers = walls[i].layers_thickness
+    if layers:
+        return float(layers)
+    box = largest_polygon(turned[i].minimum_rotated_rectangle)
+    if box is None:
+        return 200.0
+    ring = list(box.exterior.coords)
     return min(math.dist(ring[0], ring[1]), math.dist(ring[1], ring[2]))
 
 
@@ -117,7 +124,7 @@ def floor_to_plan(floor: Floor, *, rules: str | None = None, entrance: str | Non
         fr = at.frame(d.frame)
         door = make_door(DoorIn(d.gid, d.name, fr, d.overall_width, d.operation, d.lining,
                                 _wall_depth(floor.walls, walls_t, fr.centre)),
-                         _unique(slug(d.name, "d-") if d.name else "d", used), by_id, polys, notes)
+                         unique_id(slug(d.name, "d-") if d.name else "d", used), by_id, polys, notes)
         if door is not None:
             doors.append(door)
             door_gid[door.id] = d.gid
@@ -126,7 +133,7 @@ def floor_to_plan(floor: Floor, *, rules: str | None = None, entrance: str | Non
     for gid, stair in floor.stairs_up_to_here:
         arrival = stair_arrival(gid, at.poly(stair), rooms, polys, notes)
         if arrival is not None:
-            doors.append(replace(arrival, id=_unique(arrival.id, used)))
+            doors.append(replace(arrival, id=unique_id(arrival.id, used)))
     windows = make_windows([WindowIn(w.gid, w.name, at.frame(w.frame), w.overall_width, w.sill,
                                      _wall_depth(floor.walls, walls_t, at.frame(w.frame).centre))
                             for w in floor.windows], by_id, polys, notes)
@@ -142,14 +149,6 @@ def floor_to_plan(floor: Floor, *, rules: str | None = None, entrance: str | Non
                 notes=f"Imported from IFC ({floor.schema}, {floor.unit}); storey {floor.storey!r} "
                       f"({floor.storey_gid}) turned by {-angle:.2f} degrees.")
     return Imported(plan, tuple(notes), at)
-
-
-def _unique(base: str, used: set[str]) -> str:
-    out, i = base, 2
-    while out in used or out in (OUTSIDE, "entrance"):
-        out, i = f"{base}-{i}", i + 1
-    used.add(out)
-    return out
 
 
 def _entrance(doors: list[Door], entrance: str | None, floor: Floor, gid_of: dict[str, str],

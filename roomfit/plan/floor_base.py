@@ -30,6 +30,8 @@ __all__ = [
     "rooms_from_walls",
     "plan_unit",
     "make_rooms",
+    "largest_polygon",
+    "unique_id",
     "turn",
 ]
 
@@ -92,7 +94,7 @@ def main_angle(outlines: list[tuple[tuple[float, float], ...]]) -> float:
     bins; neighbouring bins are pooled so a direction split across a bin edge still wins.
     Example: a square turned by 10 degrees gives 10.0.
     """
-    votes: Counter[int] = Counter()
+    votes: Counter[int] = Counter()  # bin -> length (mm) voting for it
     sums: dict[int, float] = {}
     for outline in outlines:
         n = len(outline)
@@ -103,7 +105,7 @@ def main_angle(outlines: list[tuple[tuple[float, float], ...]]) -> float:
                 continue
             deg = (math.degrees(math.atan2(y1 - y0, x1 - x0)) + 45) % 90 - 45
             b = round(deg / 0.05)
-            votes[b] += length
+            votes[b] += round(length)
             sums[b] = sums.get(b, 0.0) + deg * length
     if not votes:
         return 0.0
@@ -151,6 +153,22 @@ def _straighten(coords: list[list[float]]) -> None:
             a[1] = b[1] = round((a[1] + b[1]) / 2)
 
 
+def largest_polygon(geom: BaseGeometry) -> Polygon | None:
+    """The largest polygon (over 1 mm2) of a polygon or collection, or None."""
+    parts = [geom] if isinstance(geom, Polygon) else list(getattr(geom, "geoms", []))
+    polys = [p for p in parts if isinstance(p, Polygon) and p.area > 1.0]
+    return max(polys, key=lambda p: p.area) if polys else None
+
+
+def unique_id(base: str, used: set[str]) -> str:
+    """``base``, or ``base-2``, ``base-3``... whichever is not in ``used`` yet (then added)."""
+    out, i = base, 2
+    while out in used or out in ("outside", "entrance"):
+        out, i = f"{base}-{i}", i + 1
+    used.add(out)
+    return out
+
+
 def clean_outline(geom: BaseGeometry) -> tuple[tuple[int, int], ...] | None:
     """The largest polygon of ``geom`` as a simple outline on the 1 mm grid, or None.
 
@@ -158,26 +176,21 @@ def clean_outline(geom: BaseGeometry) -> tuple[tuple[int, int], ...] | None:
     is a simple polygon in a plan file). Example: a 4000 x 3000 rectangle off by 2 mm at
     one corner comes back as an exact rectangle.
     """
-    polys = [geom] if geom.geom_type == "Polygon" else list(getattr(geom, "geoms", []))
-    polys = [p for p in polys if p.geom_type == "Polygon" and p.area > 1.0]
-    if not polys:
+    big = largest_polygon(geom)
+    if big is None:
         return None
-    big = max(polys, key=lambda p: p.area)
-    coords = [[round(x), round(y)] for x, y in big.exterior.coords[:-1]]
+    coords: list[list[float]] = [[round(x), round(y)] for x, y in big.exterior.coords[:-1]]
     _straighten(coords)
     shape = Polygon(coords)
     if not shape.is_valid:
         shape = Polygon([(round(x), round(y)) for x, y in big.exterior.coords[:-1]])
-    shape = set_precision(make_valid(shape).buffer(0).simplify(0.5), SNAP_MM)
-    if shape.geom_type != "Polygon":
-        parts = [p for p in getattr(shape, "geoms", []) if p.geom_type == "Polygon"]
-        if not parts:
-            return None
-        shape = max(parts, key=lambda p: p.area)
-    if shape.is_empty or shape.area < 1.0:
+    snapped = largest_polygon(set_precision(make_valid(shape).buffer(0).simplify(0.5), SNAP_MM))
+    if snapped is None:
         return None
-    shape = Polygon(shape.exterior).simplify(0.5)
-    out = tuple((int(x), int(y)) for x, y in shape.exterior.coords[:-1])
+    final = largest_polygon(Polygon(snapped.exterior).simplify(0.5))
+    if final is None:
+        return None
+    out = tuple((int(x), int(y)) for x, y in final.exterior.coords[:-1])
     return out if len(out) >= 3 and Polygon(out).is_valid else None
 
 
@@ -204,14 +217,6 @@ def plan_unit(model_unit: str) -> str:
             "centimetre": "cm"}.get(model_unit, "mm")
 
 
-def _unique(base: str, used: set[str]) -> str:
-    out, i = base, 2
-    while out in used or out in ("outside", "entrance"):
-        out, i = f"{base}-{i}", i + 1
-    used.add(out)
-    return out
-
-
 def make_rooms(spaces: list[tuple[str, str, str, Polygon]], used: set[str],
                notes: list[Note]) -> list[tuple[Room, str]]:
     """Rooms from (gid, name, long name, polygon); overlaps go to the room listed first."""
@@ -230,7 +235,7 @@ def make_rooms(spaces: list[tuple[str, str, str, Polygon]], used: set[str],
                               "outline"))
             continue
         label = long_name or name or gid
-        rid = _unique(slug(long_name or name or "room"), used)
+        rid = unique_id(slug(long_name or name or "room"), used)
         out.append((Room(rid, label, room_use(long_name, name), outline), gid))
         taken.append(Polygon(outline))
     return out

@@ -16,6 +16,7 @@ import math
 from dataclasses import dataclass
 
 from shapely import LineString, Point, Polygon
+from shapely.geometry.base import BaseGeometry
 
 from roomfit.plan.data import OUTSIDE, Door, Leaf, Room
 from roomfit.plan.floor_base import Note
@@ -213,7 +214,7 @@ def make_door(d: DoorIn, did: str, rooms: dict[str, Room], polys: dict[str, Poly
     return Door(did, pair, at, width, leaf, swings, hinge)
 
 
-def open_links(rooms: list[Room], polys: dict[str, Polygon], walls: Polygon | None,
+def open_links(rooms: list[Room], polys: dict[str, Polygon], walls: BaseGeometry | None,
                notes: list[Note], gids: dict[str, str], gap: float = 150.0) -> list[Door]:
     """Open doorways (leaf ``none``) where two spaces meet with no wall between them.
 

@@ -16,7 +16,7 @@ from dataclasses import dataclass
 from shapely import Polygon
 
 from roomfit.plan.data import Fixture, Piece, Placement, Room, Window
-from roomfit.plan.floor_base import Note, clean_outline
+from roomfit.plan.floor_base import Note, clean_outline, unique_id
 from roomfit.plan.floor_doors import side_rooms, spot_on_edge
 from roomfit.plan.floordata import Frame
 
@@ -190,19 +190,11 @@ def make_things(things: list[ThingIn], rooms: dict[str, Room], polys: dict[str, 
         if outline is None:
             notes.append(Note("skipped", t.gid, f"{label!r}: no usable footprint"))
             continue
-        fid = _unique_id(kind.replace("_", "-"), used)
+        fid = unique_id(kind.replace("_", "-"), used)
         fixtures.append(Fixture(fid, room, kind, label[:60], outline, max(round(t.height), 1)))
         notes.append(Note("assumed", t.gid, f"fitting {fid}: kind {kind!r} from its class and name "
                           f"{label!r}; no use zone (add one by hand)", fid))
     return fixtures, pieces
-
-
-def _unique_id(base: str, used: set[str]) -> str:
-    out, i = base, 2
-    while out in used:
-        out, i = f"{base}-{i}", i + 1
-    used.add(out)
-    return out
 
 
 def _piece(t: ThingIn, room: str, used: set[str], notes: list[Note]) -> Piece | None:
@@ -215,7 +207,7 @@ def _piece(t: ThingIn, room: str, used: set[str], notes: list[Note]) -> Piece | 
     angle = math.degrees(math.atan2(f.x_axis[1], f.x_axis[0])) % 360
     rotation = int(round(angle / 90.0)) % 4 * 90
     x0, y0, _, _ = t.outline.bounds
-    pid = _unique_id(f"p-{re.sub(r'[^a-z0-9]+', '-', (t.name or 'piece').casefold()).strip('-')}",
+    pid = unique_id(f"p-{re.sub(r'[^a-z0-9]+', '-', (t.name or 'piece').casefold()).strip('-')}",
                      used)
     ctype = catalogue_type(width, t.name, t.type_name)
     label = (t.name or t.type_name or "piece")[:60]

@@ -29,6 +29,7 @@ from shapely import Polygon, union_all
 from shapely.geometry.base import BaseGeometry
 
 from roomfit.errors import Problem, RoomfitError
+from roomfit.plan.floor_base import largest_polygon
 from roomfit.plan.floordata import (
     Floor,
     FloorDoor,
@@ -52,7 +53,7 @@ try:  # the optional extra: every public function says how to install it when it
     import ifcopenshell.util.placement
     import ifcopenshell.util.unit
 except ImportError:  # pragma: no cover - exercised by the CLI test without the extra
-    ifcopenshell = None
+    ifcopenshell = None  # type: ignore[assignment]
 
 __all__ = [
     "INSTALL_HINT",
@@ -173,7 +174,7 @@ def _mesh(settings: Any, el: Any) -> tuple[np.ndarray, np.ndarray] | None:
     if el.Representation is None:
         return None
     try:
-        shape = ifcopenshell.geom.create_shape(settings, el)
+        shape: Any = ifcopenshell.geom.create_shape(settings, el)
     except Exception:  # the engine raises plain RuntimeError for geometry it cannot build
         return None
     verts = np.asarray(shape.geometry.verts, dtype=float).reshape(-1, 3) * 1000.0
@@ -197,11 +198,9 @@ def _footprint(verts: np.ndarray, faces: np.ndarray) -> BaseGeometry:
 
 def _outline(geom: BaseGeometry) -> Outline | None:
     """The largest polygon's exterior, as a tuple of points (mm); holes are dropped."""
-    polys = [geom] if geom.geom_type == "Polygon" else list(getattr(geom, "geoms", []))
-    polys = [p for p in polys if p.geom_type == "Polygon" and p.area > 1.0]
-    if not polys:
+    big = largest_polygon(geom)
+    if big is None:
         return None
-    big = max(polys, key=lambda p: p.area)
     return tuple((float(x), float(y)) for x, y in big.exterior.coords[:-1])
 
 
