@@ -22,12 +22,13 @@ from typing import Any
 
 import streamlit as st
 
-from roomfit import page
+from roomfit import page, page_ifc
 from roomfit.audit.geometry import room_polygon
 from roomfit.audit.quality import quality_record
 from roomfit.caution import CAUTION
 from roomfit.errors import RoomfitError
 from roomfit.plan.data import Plan
+from roomfit.plan.ifc_import import fix_door
 from roomfit.plan.read import read_plan
 from roomfit.plan.write import dumps_plan
 from roomfit.present import compare, draw, report
@@ -544,6 +545,65 @@ def _audit(plan: Plan, rules: RuleSet) -> None:
 
 
 # ---------------------------------------------------------------------------------------------
+# IFC import (roomfit.page_ifc holds the logic; this section only lays it out)
+
+
+def _ifc_sidebar() -> None:
+    s = _state()
+    with st.sidebar.expander("Import an architect's IFC model"):
+        if not page_ifc.ifc_available():
+            st.info('Reading IFC needs the extra: pip install "roomfit[ifc]"')
+            return
+        up = st.file_uploader("IFC model (.ifc)", type=["ifc"], key="ifc_upload")
+        if up is None:
+            return
+        try:
+            if s.get("ifc_summary_id") != up.file_id:
+                s["ifc_summary"] = page_ifc.summary_from_upload(up.name, up.getvalue())
+                s["ifc_summary_id"] = up.file_id
+            choices = page_ifc.storey_choices(s["ifc_summary"])
+            storey = st.selectbox("Storey", [c[0] for c in choices], key="ifc_storey",
+                                  format_func=dict(choices).get)
+            spaces = st.text_input("Only spaces matching (e.g. 2.*; empty: all)", key="ifc_spaces")
+            if st.button("Import this storey", key="ifc_go"):
+                imported = page_ifc.import_from_upload(up.name, up.getvalue(), storey, spaces)
+                _set_plan(imported.plan, f"IFC {up.name}, storey {storey}")
+                s["ifc_review"] = imported
+        except RoomfitError as e:
+            st.error("\n\n".join(page.error_lines(e)))
+
+
+def _ifc_review(plan: Plan, rules: RuleSet) -> None:
+    """The imported plan with every guess marked; each door's leaf, swing and hinge set here."""
+    s = _state()
+    imported = s["ifc_review"]
+    if not str(s.get("origin", "")).startswith("IFC "):  # another plan was opened since
+        s["ifc_review"] = None
+        return
+    with st.expander("Review the IFC import: guessed doors and the assumed entrance", expanded=True):
+        _show_svg(draw.draw_svg(plan, rules, marks=page_ifc.review_marks(imported)))
+        st.dataframe(page_ifc.review_rows(imported), hide_index=True)
+        doors = [d.id for d in plan.doors]
+        door = st.selectbox("Door to set", doors, key=_k("ifc_door", "pick"))
+        leaf, swing, hinge = page_ifc.door_state(plan, door)
+        opts = page_ifc.door_options(plan, door)
+        cols = st.columns(3)
+        new_leaf = cols[0].selectbox("Leaf", opts["leaf"], index=opts["leaf"].index(leaf),
+                                     key=_k("ifc_leaf", door))
+        new_swing = cols[1].selectbox("Swings into", opts["swings_into"],
+                                      index=opts["swings_into"].index(swing), key=_k("ifc_sw", door))
+        new_hinge = cols[2].selectbox("Hinge (seen from that room, facing the door)", opts["hinge"],
+                                      index=opts["hinge"].index(hinge), key=_k("ifc_hinge", door))
+        if st.button("Set this door", key=_k("ifc_set", door)):
+            _edit(fix_door, door, new_leaf, new_swing, new_hinge, where="top",
+                  notice=f"Door {door} set; save the plan from the sidebar.")
+            st.rerun()
+        if st.button("Done reviewing", key="ifc_done"):
+            s["ifc_review"] = None
+            st.rerun()
+
+
+# ---------------------------------------------------------------------------------------------
 # the page
 
 
@@ -553,6 +613,7 @@ def main() -> None:
     _init()
     st.title("roomfit · furnish with the client")
     _sidebar()
+    _ifc_sidebar()
     s = _state()
     plan: Plan | None = s["plan"]
     if plan is None:
@@ -563,6 +624,9 @@ def main() -> None:
                                              if rules.overridden else ""))
     with st.container():  # one element whatever it holds, so the tabs below keep their place
         _messages("top")
+    if s.get("ifc_review") is not None:
+        with _panel("IFC review"):
+            _ifc_review(plan, rules)
     tabs = st.tabs(["The apartment", "Furniture", "Rules", "Arrangements", "Check as it stands"],
                    key="section")
     with tabs[0], _panel("apartment"):

@@ -35,7 +35,7 @@ STAGE = {
     "present.report": 8,
     "bench": 9, "bench.instances": 9, "bench.baseline": 9, "bench.run": 9, "bench.__main__": 9,
     "bench.certified": 9,
-    "page": 9, "cli": 10, "app": 12,
+    "page": 9, "page_ifc": 9, "cli": 10, "app": 12,
 }
 #: Pairs that must never import each other whatever their stage.
 FORBIDDEN = {

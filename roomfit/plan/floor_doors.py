@@ -28,6 +28,7 @@ __all__ = [
     "side_rooms",
     "door_leaf_from_operation",
     "spot_on_edge",
+    "spot_between",
     "DoorIn",
     "make_door",
     "open_links",
@@ -126,31 +127,48 @@ def spot_on_edge(outline: tuple[tuple[int, int], ...], centre: tuple[float, floa
     return at, int(math.floor(w)), best, dist
 
 
-def _reach(host: tuple[tuple[int, int], ...], edge_i: int, other: Polygon) -> tuple[float, float]:
-    """The span along the host's edge ``edge_i`` facing the other room (within 600 mm)."""
+def _reach(host: tuple[tuple[int, int], ...], edge_i: int, other: Polygon,
+           across: float | None = None) -> tuple[float, float]:
+    """The span along the host's edge ``edge_i`` whose crossing lands on the other room.
+
+    As the plan reader checks it: a point of the opening carried straight across the wall
+    by ``across`` mm (the wall's thickness at the opening's centre, plus 5 mm; None: each
+    point's own distance to the other room) must land within 5 mm of the other room.
+    """
     a, b = host[edge_i], host[(edge_i + 1) % len(host)]
     edge = LineString([a, b])
-    near = other.buffer(600).intersection(edge)
-    if near.is_empty:
-        return (0.0, 0.0)
-    ts = [edge.project(Point(c)) for g in getattr(near, "geoms", [near]) for c in g.coords]
-    # keep the part whose crossing onto the other room lands on it
     length = edge.length
     ux, uy = (b[0] - a[0]) / length, (b[1] - a[1]) / length
-    nx, ny = -uy, ux
-    inside = [t for t in _steps(min(ts), max(ts))
-              if _lands(other, (a[0] + ux * t, a[1] + uy * t), (nx, ny))]
+    n = (-uy, ux)
+    mid = (a[0] + ux * length / 2, a[1] + uy * length / 2)
+    if Polygon(host).contains(Point(mid[0] + n[0] * 5, mid[1] + n[1] * 5)):
+        n = (uy, -ux)  # point away from the host room
+    near = other.buffer(5)
+    inside = []
+    for t in _steps(0.0, length):
+        p = (a[0] + ux * t, a[1] + uy * t)
+        step = across if across is not None else other.distance(Point(p)) + 5
+        if step <= 600 + 5 and near.contains(Point(p[0] + n[0] * step, p[1] + n[1] * step)):
+            inside.append(t)
     return (min(inside), max(inside)) if inside else (0.0, 0.0)
+
+
+def spot_between(host: tuple[tuple[int, int], ...], centre: tuple[float, float], width: float,
+                 other: Polygon) -> tuple[tuple[int, int], int, int, float]:
+    """:func:`spot_on_edge` for an opening that must lead into ``other`` across one wall.
+
+    Two passes: the span is first found with each point's own distance across, then
+    checked again with the distance at the opening's centre, as the plan reader does.
+    """
+    _, _, edge_i, _ = spot_on_edge(host, centre, width)
+    spot = spot_on_edge(host, centre, width, _reach(host, edge_i, other))
+    across = other.distance(Point(spot[0])) + 5
+    return spot_on_edge(host, centre, width, _reach(host, edge_i, other, across))
 
 
 def _steps(lo: float, hi: float, step: float = 10.0) -> list[float]:
     k = max(int((hi - lo) // step), 1)
     return [lo + (hi - lo) * i / k for i in range(k + 1)]
-
-
-def _lands(other: Polygon, p: tuple[float, float], n: tuple[float, float]) -> bool:
-    ray = LineString([(p[0] - n[0] * 600, p[1] - n[1] * 600), (p[0] + n[0] * 600, p[1] + n[1] * 600)])
-    return other.buffer(3).intersects(ray)
 
 
 @dataclass(frozen=True)
@@ -184,11 +202,10 @@ def make_door(d: DoorIn, did: str, rooms: dict[str, Room], polys: dict[str, Poly
     clear = d.overall_width - 2 * d.lining if d.lining else d.overall_width
     hint = (f"overall {d.overall_width:.0f} mm less 2 x {d.lining:.0f} mm lining" if d.lining
             else f"overall width {d.overall_width:.0f} mm (the model gives no lining)")
-    reach = None
     if other is not None:
-        _, _, edge_i, _ = spot_on_edge(rooms[host].outline, centre, clear)
-        reach = _reach(rooms[host].outline, edge_i, polys[other])
-    at, width, _, dist = spot_on_edge(rooms[host].outline, centre, clear, reach)
+        at, width, _, dist = spot_between(rooms[host].outline, centre, clear, polys[other])
+    else:
+        at, width, _, dist = spot_on_edge(rooms[host].outline, centre, clear)
     if width < 300:
         notes.append(Note("skipped", d.gid, f"door {d.name!r}: no stretch of wall of "
                           f"{rooms[host].id!r} holds its opening"))
@@ -241,9 +258,7 @@ def open_links(rooms: list[Room], polys: dict[str, Polygon], walls: BaseGeometry
             if piece.length < 600:
                 continue
             mid = piece.interpolate(0.5, normalized=True)
-            _, _, edge_i, _ = spot_on_edge(a.outline, (mid.x, mid.y), piece.length)
-            reach = _reach(a.outline, edge_i, pb)
-            at, width, _, _ = spot_on_edge(a.outline, (mid.x, mid.y), piece.length - 20, reach)
+            at, width, _, _ = spot_between(a.outline, (mid.x, mid.y), piece.length - 20, pb)
             if width < 600:
                 continue
             did = f"open-{a.id}-{b.id}"

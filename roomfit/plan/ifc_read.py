@@ -104,7 +104,9 @@ def _storeys(model: Any) -> list[Any]:
 
 
 def _contained(storey: Any, cls: str) -> list[Any]:
-    return [e for e in ifcopenshell.util.element.get_decomposition(storey) if e.is_a(cls)]
+    """Elements of ``cls`` in the storey, in GlobalId order (the library gives a set)."""
+    return sorted((e for e in ifcopenshell.util.element.get_decomposition(storey) if e.is_a(cls)),
+                  key=lambda e: e.GlobalId)
 
 
 def _stated_area(space: Any) -> float | None:
@@ -303,7 +305,7 @@ def _near_level(model: Any, classes: tuple[str, ...], settings: Any, level: floa
     """Elements of ``classes`` with their meshes whose body reaches into the storey's height."""
     out = []
     for cls in classes:
-        for el in model.by_type(cls):
+        for el in sorted(model.by_type(cls), key=lambda e: e.GlobalId):
             mesh = _mesh(settings, el)
             if mesh is None:
                 skipped.append(Skipped(el.GlobalId, el.is_a(), "no body geometry"))
@@ -366,8 +368,9 @@ def _in_schema(model: Any, cls: str) -> bool:
 def _stairs_up_to(model: Any, level: float, settings: Any) -> tuple[tuple[str, Outline], ...]:
     """Stairs that climb from at least 1 m below the floor level to within 400 mm of it."""
     out = []
-    for stair in model.by_type("IfcStair"):
-        parts = [stair] + [p for p in ifcopenshell.util.element.get_decomposition(stair)]
+    for stair in sorted(model.by_type("IfcStair"), key=lambda e: e.GlobalId):
+        parts = [stair, *sorted(ifcopenshell.util.element.get_decomposition(stair),
+                                key=lambda e: e.GlobalId)]
         meshes = [m for m in (_mesh(settings, p) for p in parts) if m is not None]
         if not meshes:
             continue
