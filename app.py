@@ -17,6 +17,7 @@ import logging
 import time
 from collections.abc import Iterator
 from contextlib import contextmanager
+from dataclasses import replace
 from pathlib import Path
 from typing import Any
 
@@ -28,7 +29,7 @@ from roomfit.audit.quality import quality_record
 from roomfit.caution import CAUTION
 from roomfit.errors import RoomfitError
 from roomfit.plan.data import Plan
-from roomfit.plan.ifc_import import fix_door
+from roomfit.plan.ifc_import import fix_door, plan_text
 from roomfit.plan.read import read_plan
 from roomfit.plan.write import dumps_plan
 from roomfit.present import compare, draw, report
@@ -569,6 +570,7 @@ def _ifc_sidebar() -> None:
                 imported = page_ifc.import_from_upload(up.name, up.getvalue(), storey, spaces)
                 _set_plan(imported.plan, f"IFC {up.name}, storey {storey}")
                 s["ifc_review"] = imported
+                st.rerun()
         except RoomfitError as e:
             st.error("\n\n".join(page.error_lines(e)))
 
@@ -598,6 +600,10 @@ def _ifc_review(plan: Plan, rules: RuleSet) -> None:
             _edit(fix_door, door, new_leaf, new_swing, new_hinge, where="top",
                   notice=f"Door {door} set; save the plan from the sidebar.")
             st.rerun()
+        st.download_button("Save with the import report on top (.toml)",
+                           plan_text(replace(imported, plan=plan), CAUTION),
+                           file_name=f"{page.file_stem(plan)}.toml", mime="application/toml",
+                           key=_k("ifc_save", "plan"))
         if st.button("Done reviewing", key="ifc_done"):
             s["ifc_review"] = None
             st.rerun()

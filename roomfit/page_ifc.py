@@ -76,16 +76,15 @@ def storey_choices(summary: ModelSummary) -> list[tuple[str, str]]:
 
 
 def review_marks(imported: Imported) -> list[Mark]:
-    """A drawing mark at every door, link, entrance and stair arrival the import guessed or
-    assumed (numbered on the drawing, the reason in its legend)."""
+    """One drawing mark per door, link, entrance or stair arrival the import guessed or
+    assumed anything about (numbered on the drawing, every reason in its legend line)."""
     doors = {d.id: d for d in imported.plan.doors}
-    marks, seen = [], set()
+    reasons: dict[str, list[str]] = {}
     for n in imported.notes:
-        if n.about in doors and n.kind in ("guessed", "assumed") and n.about not in seen:
-            seen.add(n.about)
-            d = doors[n.about]
-            marks.append(Mark("note", f"{n.kind}: {n.text}", (float(d.at[0]), float(d.at[1])), ()))
-    return marks
+        if n.about in doors and n.kind in ("guessed", "assumed"):
+            reasons.setdefault(n.about, []).append(f"{n.kind}: {n.text}")
+    return [Mark("note", "; ".join(texts), (float(doors[d].at[0]), float(doors[d].at[1])), ())
+            for d, texts in reasons.items()]
 
 
 def review_rows(imported: Imported) -> list[dict[str, str]]:
