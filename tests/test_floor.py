@@ -83,6 +83,22 @@ def test_hinge_side_follows_the_frame_under_every_placement(turn: int, mirrored:
     assert math.dist(hinge, expected) <= 60, (hinge, expected)
 
 
+@pytest.mark.parametrize("mx, my", [(True, False), (False, True), (True, True)])
+def test_mirrored_body_flips_hinge_or_swing(mx: bool, my: bool) -> None:
+    # a shared door type placed mirrored: the placement stays right-handed, the body mirrored
+    frame = _door_frame(0, False)
+    plain = floor_to_plan(_floor(doors=[FloorDoor("gD", "Door", frame, 900.0,
+                                                  "SINGLE_SWING_LEFT", None)]))
+    mirrored = floor_to_plan(_floor(doors=[FloorDoor("gD", "Door", frame, 900.0,
+                                                     "SINGLE_SWING_LEFT", None, mx, my)]))
+    a, b = plain.plan.doors[0], mirrored.plan.doors[0]
+    assert (b.swings_into != a.swings_into) == my  # mirrored across local x: opens to -y
+    ha, _ = door_leaf(plain.plan, a)
+    hb, _ = door_leaf(mirrored.plan, b)
+    # the hinge jamb moves (about 900 mm, the opening less the lining) when x is mirrored
+    assert (math.dist(ha, hb) > 700) == mx
+
+
 def test_hinge_side_by_hand() -> None:
     # plan-format docs' example: south wall of a bedroom, swinging north into it; hinges on
     # the east jamb read 'left' from inside facing south

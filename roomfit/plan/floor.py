@@ -123,7 +123,8 @@ def floor_to_plan(floor: Floor, *, rules: str | None = None, entrance: str | Non
     for d in floor.doors:
         fr = at.frame(d.frame)
         door = make_door(DoorIn(d.gid, d.name, fr, d.overall_width, d.operation, d.lining,
-                                _wall_depth(floor.walls, walls_t, fr.centre)),
+                                _wall_depth(floor.walls, walls_t, fr.centre), d.mirrored_x,
+                                d.mirrored_y),
                          unique_id(slug(d.name, "d-") if d.name else "d", used), by_id, polys, notes)
         if door is not None:
             doors.append(door)

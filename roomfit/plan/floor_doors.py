@@ -182,6 +182,8 @@ class DoorIn:
     operation: str
     lining: float | None
     wall: float
+    mirrored_x: bool = False
+    mirrored_y: bool = False
 
 
 def make_door(d: DoorIn, did: str, rooms: dict[str, Room], polys: dict[str, Polygon],
@@ -190,6 +192,8 @@ def make_door(d: DoorIn, did: str, rooms: dict[str, Room], polys: dict[str, Poly
     f = d.frame
     centre = f.centre
     minus, plus = side_rooms(centre, f.y_axis, d.wall / 2, polys)
+    if d.mirrored_y:  # the body is drawn mirrored across local x: it opens towards local -y
+        minus, plus = plus, minus
     if minus is None and plus is None:
         notes.append(Note("skipped", d.gid, f"door {d.name!r}: no imported room on either side"))
         return None
@@ -218,10 +222,14 @@ def make_door(d: DoorIn, did: str, rooms: dict[str, Room], polys: dict[str, Poly
     leaf, side, why = door_leaf_from_operation(d.operation, d.name)
     swings, hinge = None, None
     if leaf == Leaf.HINGED:
-        u = f.x_range[0] if side == "left" else f.x_range[1]
+        u = f.x_range[0] if (side == "left") != d.mirrored_x else f.x_range[1]
         hinge_pt = f.point(u, sum(f.y_range) / 2)
         swings = plus if plus is not None else OUTSIDE
-        hinge = hinge_side(hinge_pt, centre, f.y_axis)
+        opens = (-f.y_axis[0], -f.y_axis[1]) if d.mirrored_y else f.y_axis
+        hinge = hinge_side(hinge_pt, centre, opens)
+        if d.mirrored_x or d.mirrored_y:
+            notes.append(Note("info", d.gid, f"door {did}: its body is drawn mirrored; hinge and "
+                              "swing follow the mirror", did))
     if why:
         notes.append(Note("guessed", d.gid, f"door {did}: {why}", did))
     elif dist > 400:

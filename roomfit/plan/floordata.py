@@ -76,7 +76,12 @@ class FloorWall:
 
 @dataclass(frozen=True)
 class FloorDoor:
-    """A door: its frame, overall width and lining thickness (mm), and operation type."""
+    """A door: its frame, overall width and lining thickness (mm), and operation type.
+
+    ``mirrored_x``/``mirrored_y``: the door's body is drawn mirrored across its local x
+    (or y) axis by the mapping of its shared type geometry, so its hinge jamb (or the side
+    it opens to) is the other one.
+    """
 
     gid: str
     name: str
@@ -84,6 +89,8 @@ class FloorDoor:
     overall_width: float
     operation: str
     lining: float | None = None
+    mirrored_x: bool = False
+    mirrored_y: bool = False
 
 
 @dataclass(frozen=True)

@@ -226,6 +226,28 @@ def _operation(door: Any) -> str:
     return str(getattr(t, "OperationType", None) or op or "NOTDEFINED")
 
 
+def _mirrors(el: Any) -> tuple[bool, bool]:
+    """Whether the body's mapped geometry is mirrored across local x, and across local y.
+
+    A shared door type placed mirrored carries the mirror in the IfcMappedItem's
+    IfcCartesianTransformationOperator (a negative scale or a flipped axis), not in the
+    door's placement, which is always right-handed.
+    """
+    for rep in el.Representation.Representations if el.Representation else []:
+        if rep.RepresentationIdentifier != "Body":
+            continue
+        for item in rep.Items:
+            t = getattr(item, "MappingTarget", None)
+            if t is None:
+                continue
+            s1 = float(t.Scale if t.Scale is not None else 1.0)
+            s2 = float(getattr(t, "Scale2", None) or s1)
+            ax1 = t.Axis1.DirectionRatios if t.Axis1 else (1.0, 0.0, 0.0)
+            ax2 = t.Axis2.DirectionRatios if t.Axis2 else (0.0, 1.0, 0.0)
+            return ax1[0] * s1 < 0, ax2[1] * s2 < 0
+    return False, False
+
+
 def _lining(door: Any, scale: float) -> float | None:
     t = ifcopenshell.util.element.get_type(door)
     for p in list(getattr(t, "HasPropertySets", None) or []):
@@ -285,7 +307,7 @@ def read_floor(path: str | Path, storey: str | None = None,
         low = float(mesh[0][:, 2].min())
         if el.is_a("IfcDoor") and abs(low - level) <= _LEVEL_MM:
             doors.append(FloorDoor(el.GlobalId, el.Name or "", fr, width, _operation(el),
-                                   _lining(el, scale)))
+                                   _lining(el, scale), *_mirrors(el)))
         elif el.is_a("IfcWindow") and level - _LEVEL_MM <= low < level + 2400:
             windows.append(FloorWindow(el.GlobalId, el.Name or "", fr, width, low - level))
     things = _read_things(model, settings, scale, level, skipped)
