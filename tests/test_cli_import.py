@@ -41,3 +41,4 @@ def test_never_writes_over_the_model(tmp_path: Path, capsys: pytest.CaptureFixtu
     model.write_text("ISO-10303-21;")
     assert main(["import", str(model), "-o", str(model)]) == 2
     assert model.read_text() == "ISO-10303-21;"
+

@@ -147,6 +147,7 @@ def test_door_to_no_space_is_the_assumed_entrance_and_a_named_one_wins() -> None
     assert named.plan.doors[0].id == "d-front"
     with pytest.raises(Exception, match="not a door of the plan"):
         floor_to_plan(_floor(doors=[inner, front]), entrance="nope")
+    assert floor_to_plan(_floor(doors=[inner]), entrance="gI").plan.doors[0].is_entrance
 
 
 def test_spaces_meeting_with_no_wall_get_an_open_link() -> None:

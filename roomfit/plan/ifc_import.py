@@ -38,6 +38,12 @@ def import_ifc(path: str | Path, *, storey: str | None = None, spaces: str | Non
     imported = floor_to_plan(floor, rules=rules, entrance=entrance, name=name)
     notes = tuple(Note("assumed", floor.storey_gid, text) for text in chose) + imported.notes
     imported = replace(imported, notes=notes)
+    doors = imported.plan.doors
+    if doors and not any(d.is_entrance for d in doors):
+        known = ", ".join(d.id for d in doors)
+        raise PlanError(Problem("--entrance", "every door joins two imported spaces, so the "
+                                "entrance is unknown", f"name it with --entrance; doors: {known}"),
+                        str(path))
     try:
         plan = loads_plan(dumps_plan(imported.plan), str(path))
     except PlanError as e:
