@@ -212,3 +212,30 @@ def test_a_door_shape_costs_the_same_however_many_rooms_the_plan_has(
                                                        for x, y in plan.rooms[0].outline))
         for i in range(300)))
     assert shapes_built(many) == shapes_built(plan) > 0
+
+
+@pytest.mark.parametrize("argv, words", [
+    (["--seed", "2147483648"], "2147483648 is outside 0 to 2147483647"),  # CP-SAT: 32-bit seed
+    (["--seed", "-1"], "outside 0 to"),
+    (["--grid", "0"], "outside 1 to 1000"),
+    (["--seed", "1e3"], "expected a whole number"),
+])
+def test_solve_arguments_out_of_range_are_refused_with_a_message(
+        argv: list[str], words: str, tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    plan = tmp_path / "plan.toml"
+    plan.write_text(BASE, encoding="utf-8")
+    with pytest.raises(SystemExit) as info:
+        main(["solve", str(plan), "-o", str(tmp_path / "out"), *argv])
+    assert info.value.code == 2
+    err = capsys.readouterr().err
+    assert words in err and "Traceback" not in err
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["plan.toml"]
+
+
+def test_a_title_with_a_control_character_is_refused(tmp_path: Path,
+                                                     capsys: pytest.CaptureFixture[str]) -> None:
+    plan = tmp_path / "plan.toml"
+    plan.write_text(BASE, encoding="utf-8")
+    with pytest.raises(SystemExit):
+        main(["draw", str(plan), "-o", str(tmp_path / "a.svg"), "--title", "bell\x07"])
+    assert "control character (U+0007)" in capsys.readouterr().err
