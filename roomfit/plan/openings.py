@@ -117,7 +117,7 @@ def read_doors(r: FieldReader, data: dict, rooms: dict[str, Room]) -> list[Door]
                 r.add(f"{f}.leaf", f"unknown leaf {leaf_s!r}",
                       f"use one of {', '.join(x.value for x in Leaf)}")
         swings, hinge = r.text(t, "swings_into", f), r.text(t, "hinge", f)
-        if not ok_pair:
+        if not ok_pair or not isinstance(pair, list):
             continue
         a, b = pair
         names_outside = names_outside or OUTSIDE in pair

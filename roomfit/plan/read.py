@@ -394,18 +394,20 @@ def loads_plan(text: str | bytes, source: str = "<plan>") -> Plan:
 
 def _check_ids(r: FieldReader, plan: Plan) -> None:
     seen: dict[str, str] = {}
-    groups = (("rooms", plan.rooms), ("doors", plan.doors), ("windows", plan.windows),
-              ("fixtures", plan.fixtures), ("furniture", plan.furniture))
-    for key, items in groups:
-        for i, item in enumerate(items):
+    groups = (("rooms", [x.id for x in plan.rooms]), ("doors", [x.id for x in plan.doors]),
+              ("windows", [x.id for x in plan.windows]),
+              ("fixtures", [x.id for x in plan.fixtures]),
+              ("furniture", [x.id for x in plan.furniture]))
+    for key, ids in groups:
+        for i, iid in enumerate(ids):
             f = f"{key}[{i}].id"
-            if item.id in _RESERVED:
-                r.add(f, f"{item.id!r} is a reserved name", "choose another id")
-            elif item.id in seen:
-                r.add(f, f"duplicate id {item.id!r}, already used by {seen[item.id]}",
+            if iid in _RESERVED:
+                r.add(f, f"{iid!r} is a reserved name", "choose another id")
+            elif iid in seen:
+                r.add(f, f"duplicate id {iid!r}, already used by {seen[iid]}",
                       "ids must be unique across the whole plan")
             else:
-                seen[item.id] = f
+                seen[iid] = f
 
 
 def read_plan(path: str | Path) -> Plan:
