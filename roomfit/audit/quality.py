@@ -261,6 +261,11 @@ def _centre(p: _Placed) -> tuple[float, float]:
     return c.x, c.y
 
 
+def _of_category(category: str) -> Callable[[PieceSpec], bool]:
+    """A test for pieces of ``category``."""
+    return lambda s: s.category == category
+
+
 def _angle(direction: tuple[int, int], vec: tuple[float, float]) -> float:
     """Degrees between a unit axis and a vector (0 when the vector is null)."""
     n = math.hypot(*vec)
@@ -345,7 +350,7 @@ def _reach(ctx: _Ctx) -> list[GroupCheck]:
         for relation, cat in table.spec.relations:
             if relation != "in_front":
                 continue
-            seats = ctx.in_room(table.at.room, lambda s, c=cat: s.category == c)
+            seats = ctx.in_room(table.at.room, _of_category(cat))
             best = None
             for pid, seat in seats:
                 lo, hi = reach_range(table.spec, seat.spec)
@@ -387,7 +392,7 @@ def _bedside(ctx: _Ctx) -> list[GroupCheck]:
               for rel, cat in p.spec.relations if rel == "beside_head"]
     options = []  # (distance, stand, bed, side)
     for pid, p, cat in stands:
-        for bid, bed in ctx.in_room(p.at.room, lambda s, c=cat: s.category == c):
+        for bid, bed in ctx.in_room(p.at.room, _of_category(cat)):
             for side in used_long_sides(bed.spec):
                 options.append((p.shape.distance(_head_half(bed, side)), pid, bid, side))
     options.sort()

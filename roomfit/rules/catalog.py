@@ -261,10 +261,10 @@ def resolve_piece(
     """
     if piece.type == "custom":
         assert piece.width and piece.depth and piece.height is not None
-        zones = tuple(ZoneReq(side, kind, rules.mm(f"zone.{kind}"), f"zone.{kind}")
-                      for side, kind in piece.zones)
+        own = tuple(ZoneReq(side, kind, rules.mm(f"zone.{kind}"), f"zone.{kind}")
+                    for side, kind in piece.zones)
         return PieceSpec(piece.id, piece.label or piece.id, "custom", piece.category or "custom",
-                         piece.width, piece.depth, piece.height, False, zones, (), piece.rooms,
+                         piece.width, piece.depth, piece.height, False, own, (), piece.rooms,
                          groups=piece.groups)
     if piece.type not in catalog:
         raise PlanError(Problem(field + ".type", f"unknown furniture type {piece.type!r}",

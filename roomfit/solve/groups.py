@@ -43,14 +43,27 @@ def unmet_terms(unmet: cp_model.LinearExprT) -> list[cp_model.LinearExprT]:
     return [solver_weight() * unmet]
 
 
-def _doubled_mid(pv: PieceVars, side: str) -> tuple[cp_model.LinearExprT, cp_model.LinearExprT]:
+def _centre2(pv: PieceVars) -> tuple[cp_model.LinearExpr, cp_model.LinearExpr]:
+    """Twice the footprint centre, as linear expressions (x, y)."""
+    return (cp_model.LinearExpr.weighted_sum([pv.x, pv.width_expr()], [2, 1]),
+            cp_model.LinearExpr.weighted_sum([pv.y, pv.depth_expr()], [2, 1]))
+
+
+def _doubled_mid(pv: PieceVars, side: str) -> tuple[cp_model.LinearExpr, cp_model.LinearExpr]:
     """Twice the middle of ``side`` of the piece, as linear expressions (x, y)."""
-    cx = 2 * pv.x + pv.width_expr()
-    cy = 2 * pv.y + pv.depth_expr()
+    cx, cy = _centre2(pv)
     ext = pv.spec.depth if side in ("front", "back") else pv.spec.width
-    ex = sum(lit * side_direction(side, rot)[0] * ext for (_, rot), lit in pv.alts.items())
-    ey = sum(lit * side_direction(side, rot)[1] * ext for (_, rot), lit in pv.alts.items())
-    return cx + ex, cy + ey
+    lits = list(pv.alts.values())
+    ex = [side_direction(side, rot)[0] * ext for _, rot in pv.alts]
+    ey = [side_direction(side, rot)[1] * ext for _, rot in pv.alts]
+    return (cp_model.LinearExpr.weighted_sum([cx, *lits], [1, *ex]),
+            cp_model.LinearExpr.weighted_sum([cy, *lits], [1, *ey]))
+
+
+def _dot(u: tuple[int, int], a: tuple[cp_model.LinearExpr, cp_model.LinearExpr],
+         b: tuple[cp_model.LinearExpr, cp_model.LinearExpr]) -> cp_model.LinearExpr:
+    """``u . (a - b)`` for doubled points ``a`` and ``b``."""
+    return cp_model.LinearExpr.weighted_sum([a[0], b[0], a[1], b[1]], [u[0], -u[0], u[1], -u[1]])
 
 
 def _on_used_side(m: cp_model.CpModel, stand: PieceVars, bed: PieceVars) -> cp_model.IntVar:
@@ -61,14 +74,12 @@ def _on_used_side(m: cp_model.CpModel, stand: PieceVars, bed: PieceVars) -> cp_m
     if len(used) == 2:
         m.add(ok == 1)
         return ok
-    scx, scy = 2 * stand.x + stand.width_expr(), 2 * stand.y + stand.depth_expr()
-    bcx, bcy = 2 * bed.x + bed.width_expr(), 2 * bed.y + bed.depth_expr()
+    stand_c, bed_c = _centre2(stand), _centre2(bed)
     options = []
     for (_, rot), lit in bed.alts.items():
-        dx, dy = side_direction(used[0], rot)
         p = m.new_bool_var("")
         m.add_implication(p, lit)
-        m.add(dx * (scx - bcx) + dy * (scy - bcy) >= 1).only_enforce_if(p)
+        m.add(_dot(side_direction(used[0], rot), stand_c, bed_c) >= 1).only_enforce_if(p)
         options.append(p)
     m.add_bool_or(options).only_enforce_if(ok)
     return ok
@@ -94,16 +105,15 @@ def _talk_pair(m: cp_model.CpModel, a: PieceVars, b: PieceVars, far: int) -> cp_
     """A literal that implies: the front middles of ``a`` and ``b`` are within ``far`` mm
     (L1) and neither seat stands behind the other's back."""
     ok = m.new_bool_var("")
-    (ax, ay), (bx, by) = _doubled_mid(a, "front"), _doubled_mid(b, "front")
+    fa, fb = _doubled_mid(a, "front"), _doubled_mid(b, "front")
     dx, dy = m.new_int_var(0, 10_000_000, ""), m.new_int_var(0, 10_000_000, "")
-    m.add_abs_equality(dx, ax - bx)
-    m.add_abs_equality(dy, ay - by)
+    m.add_abs_equality(dx, _dot((1, 0), fa, fb))
+    m.add_abs_equality(dy, _dot((0, 1), fa, fb))
     m.add(dx + dy <= 2 * far).only_enforce_if(ok)
-    for me, (ox, oy) in ((a, (bx, by)), (b, (ax, ay))):
-        kx, ky = _doubled_mid(me, "back")
+    for me, other in ((a, fb), (b, fa)):
+        back = _doubled_mid(me, "back")
         for (_, rot), lit in me.alts.items():
-            ux, uy = side_direction("front", rot)
-            m.add(ux * (ox - kx) + uy * (oy - ky) >= 0).only_enforce_if([ok, lit])
+            m.add(_dot(side_direction("front", rot), other, back) >= 0).only_enforce_if([ok, lit])
     return ok
 
 
