@@ -253,7 +253,7 @@ def test_door_blocked_by_piece_cuts_off_the_room() -> None:
     # named next to the bottleneck
     rules = load_ruleset("everyday")
     result = audit(_room_plan((_custom("chest", 1400, 0, 2600, 500),)), rules)
-    assert not _one(result, "route.reach", "door entry").ok
+    assert not _one(result, "route.reach", "side of door entry").ok
     assert not _cupboard(result).ok
     assert "chest" in _cupboard(result).pieces
 
@@ -452,7 +452,14 @@ def test_check_every_sample(path: Path, tmp_path: Path, capsys: pytest.CaptureFi
     result = audit(plan, load_ruleset("ada-2010"))
     assert (code == 0) == audit(plan, load_ruleset(plan.rules.set, plan.rules.override_map())).passed
     assert summary_text(result, load_ruleset("ada-2010")).count("\n") > 5
-    assert len(marks_for(result)) == len(result.failures)
+    # one mark per blocked place: failures of the circulation rules at one place (within a
+    # route width) share a mark, every other failure has its own
+    marks = marks_for(result)
+    assert len(marks) <= len(result.failures)
+    for f in result.failures:
+        if f.where is not None:
+            assert any(m.where is not None and math.dist(m.where, f.where) <= (f.required or 0)
+                       or m.where == f.where for m in marks), f.message
 
 
 def test_random_layouts_give_consistent_findings() -> None:

@@ -27,6 +27,8 @@ STAGE = {
     # the pure-shapely steps that make a Plan of it
     "plan.floordata": 1, "plan.ifc_read": 3, "plan.floor_base": 3, "plan.floor_doors": 3,
     "plan.floor_items": 3, "plan.floor": 3, "plan.ifc_import": 3,
+    "audit.walkway": 4, "audit.pinch": 4, "audit.routines": 4, "audit.findings": 4,
+    "audit.passage": 4, "audit.clearances": 4, "audit.turning": 4, "audit.circulation": 4,
     "audit.check": 4, "audit.routes": 4,
     "solve": 5, "solve.rooms": 5, "solve.vars": 5, "solve.groups": 5, "solve.terms": 5,
     "solve.model": 5, "solve.cuts": 5, "solve.building": 5, "solve.explain": 5, "solve.search": 6,

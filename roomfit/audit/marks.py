@@ -4,19 +4,28 @@
 from __future__ import annotations
 
 from dataclasses import dataclass
+from enum import StrEnum
 
-__all__ = ["Mark", "Path"]
+__all__ = ["MarkKind", "Mark", "Path"]
+
+
+class MarkKind(StrEnum):
+    """What a mark highlights: a failed rule, or a note."""
+
+    FAIL = "fail"
+    NOTE = "note"
 
 
 @dataclass(frozen=True)
 class Mark:
     """Something to highlight on a drawing (a failed rule, say).
 
-    ``kind`` is ``"fail"`` or ``"note"``; ``where`` a point to number, ``outline`` a polygon
-    to outline (either may be missing; a mark with neither appears in the legend only).
+    ``kind`` is a :class:`MarkKind` (equal to its text, ``"fail"`` or ``"note"``); ``where``
+    a point to number, ``outline`` a polygon to outline (either may be missing; a mark with
+    neither appears in the legend only).
     """
 
-    kind: str
+    kind: MarkKind
     label: str
     where: tuple[float, float] | None
     outline: tuple[tuple[float, float], ...]
