@@ -188,7 +188,7 @@ def trip_finding(floor: Floor, trip: Trip, width: float, a: list[Target] | None 
     name = trip.label or f"{trip.origin} to {trip.target}"
     a = a if a is not None else place_target(floor, trip.origin)
     b = b if b is not None else place_target(floor, trip.target)
-    if not a or not b:
+    if not a or not b:  # check_trips leaves such trips out; a caller's plan point
         missing = trip.origin if not a else trip.target
         return Finding("route.trip", False, f"trip {name}: {missing} is not a placed piece, "
                        "fitting, door or room of the plan", required=width, source=source_of(rw))
@@ -239,8 +239,12 @@ def blocked_doors(floor: Floor) -> list[str]:
 
 def check_trips(floor: Floor) -> list[Finding]:
     """One ``route.trip`` finding per trip of the plan's routine (or the default routine
-    where the plan has none)."""
+    where the plan has none) whose two places are in this arrangement: a trip to a piece
+    without a placement (or left out, as the solver leaves out pieces of other rooms while
+    it places one group) waits until the piece stands somewhere; ``piece.room`` already
+    fails for a piece not placed."""
     width = floor.rules.get("route.width").exact_mm
     trips, _ = routines_for(floor.plan)
-    return [trip_finding(floor, trip, width) for trip in trips]
+    return [trip_finding(floor, trip, width) for trip in trips
+            if place_target(floor, trip.origin) and place_target(floor, trip.target)]
 

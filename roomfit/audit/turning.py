@@ -30,7 +30,7 @@ __all__ = ["RASTER_CELL", "TurningResult", "turning_space", "check_turning"]
 RASTER_CELL = 10.0
 #: Tolerance (mm) of the largest-circle search; the circle reported is the found centre's
 #: own clearance, so it is never larger than the true one.
-_MIC_TOL = 0.05
+_MIC_TOL = 0.01
 
 
 @dataclass(frozen=True)
@@ -147,9 +147,9 @@ def _circle(floor: BaseGeometry, size: float) -> tuple[float, tuple[float, float
     floor's outline (the shrunk floor's arcs are chords, a little too generous)."""
     mic = shapely.maximum_inscribed_circle(floor, _MIC_TOL)
     (cx, cy), (bx, by) = mic.coords[0], mic.coords[1]
-    # the centre's own clearance: a true lower bound of the largest circle, within
-    # 2 * _MIC_TOL of it
-    diam = math.floor(20 * math.hypot(bx - cx, by - cy)) / 10
+    # the centre's own clearance: a lower bound of the largest circle within 2 * _MIC_TOL
+    # of it, to 0.1 mm (messages then round down to the whole millimetre)
+    diam = round(2 * math.hypot(bx - cx, by - cy), 1)
     need = size / 2 - WIDTH_TOL / 2
     region = floor.buffer(-need, quad_segs=QUAD_SEGS)
     edge = floor.boundary
