@@ -114,3 +114,26 @@ def test_plan_without_trips_is_not_best_at_walking():
     assert cmp.rows[1].value("walking") is None and cmp.rows[1].text("walking") == "- (no trips)"
     assert not cmp.is_best("walking", 1)
     assert "still: no routine in the plan; no default trip applies" in render_table(cmp)
+
+
+def test_unplaced_pieces_and_cut_off_turning_spaces_are_not_best():
+    # an as-is plan that leaves a piece unplaced has more free floor only because the piece
+    # is missing: it ranks behind the arrangement that places everything
+    placed = _arrangement(900, 1500)
+    loose = replace(placed, furniture=(placed.furniture[0],
+                                       replace(placed.furniture[1], placement=None)))
+    cmp = compare([loose, placed], ["loose", "placed"], EVERYDAY)
+    assert loose.furniture[1].placement is None and cmp.rows[0].free_floor_share > \
+        cmp.rows[1].free_floor_share
+    assert cmp.is_best("free_floor", 1) and not cmp.is_best("free_floor", 0)
+    assert "1 not placed" in cmp.rows[0].text("free_floor")
+    # ISO 21542 asks a 1500 mm turning circle in each room: here it fits only north of a
+    # 600 mm gap that no route passes (its route width is wider), so the audit finds it cut
+    # off and the comparison counts it as missing, not as had
+    iso = load_ruleset("iso-21542")
+    assert iso.get("route.width").exact_mm > 600
+    low = replace(_arrangement(600, 1500), furniture=tuple(
+        replace(p, placement=replace(p.placement, y=800)) for p in placed.furniture))
+    row = compare([low], ["low"], iso).rows[0]
+    assert [f.ok for f in row.audit.by_rule("turning.space")] == [True]
+    assert row.turning_have == 0 and row.turning_need == 1

@@ -7,8 +7,11 @@ Metrics (see ``docs/routes.md``):
   routine trip unreachable ranks behind every one that does not, whatever its metres;
 - narrowest passage on any routine route (mm, wider is better; an unreachable trip counts
   as narrower than any width);
-- turning spaces: rooms that have one out of the rooms the rule set asks one for;
-- free floor: the share of the rooms' floor not under fittings or furniture;
+- turning spaces: rooms that have one the route reaches, out of the rooms the rule set asks
+  one for (a space the audit finds cut off counts as missing);
+- free floor: the share of the rooms' floor not under fittings or furniture; an arrangement
+  that leaves pieces unplaced ranks behind every one that places them all (its floor is
+  free only because pieces are missing);
 - group rules met and preferences met: the checks of the layout-quality audit
   (:func:`roomfit.audit.quality.quality`) that pass, of those measured; each check, with its
   measured value and target, is listed under the table (:func:`quality_notes`).
@@ -93,6 +96,7 @@ class Row:
     quality: tuple[GroupCheck, ...]
     #: The arrangement's idea in one line (:func:`roomfit.audit.ideas.describe`).
     idea: str = ""
+    unplaced: int = 0
 
     def _met(self, kind: Kind) -> tuple[int, int]:
         mine = [c for c in self.quality if c.kind == kind]
@@ -114,7 +118,7 @@ class Row:
         if metric == "turning":
             return None if not self.turning_need else (self.turning_have / self.turning_need,)
         if metric == "free_floor":
-            return (round(100 * self.free_floor_share),)
+            return (-self.unplaced, round(100 * self.free_floor_share))
         if metric in ("groups", "preferences"):
             met, asked = self._met(Kind.GROUP if metric == "groups" else Kind.PREFERENCE)
             return None if not asked else (met / asked,)
@@ -137,7 +141,8 @@ class Row:
         if metric == "turning":
             return "not asked" if not self.turning_need else f"{self.turning_have} / {self.turning_need}"
         if metric == "free_floor":
-            return f"{100 * self.free_floor_share:.0f} %"
+            out = f"{100 * self.free_floor_share:.0f} %"
+            return out + (f" ({self.unplaced} not placed)" if self.unplaced else "")
         if metric in ("groups", "preferences"):
             met, asked = self._met(Kind.GROUP if metric == "groups" else Kind.PREFERENCE)
             return "-" if not asked else f"{met} / {asked} (listed below)"
@@ -171,16 +176,20 @@ def compare_row(plan: Plan, name: str, rules: RuleSet | None = None) -> Row:
     result = audit(plan, rs)
     routes = score_routes(plan, rs)
     turning = result.by_rule("turning.space")
+    cut_off = {f.room for f in result.by_rule("route.reach")
+               if not f.ok and f.message.startswith("the turning space in ")}
     return Row(
         name=name, plan=plan, rules=rs, audit=result, routes=routes,
         rules_failed=len(result.failures),
         walking_m_per_day=routes.walking_m_per_day,
         unreachable=len(routes.unreachable),
         narrowest_mm=routes.narrowest_mm,
-        turning_have=sum(f.ok for f in turning), turning_need=len(turning),
+        turning_have=sum(f.ok and f.room not in cut_off for f in turning),
+        turning_need=len(turning),
         free_floor_share=_free_share(plan, rs),
         quality=quality(plan, rs),
         idea=describe(plan, rs),
+        unplaced=sum(p.placement is None for p in plan.furniture),
     )
 
 
