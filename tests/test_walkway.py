@@ -193,3 +193,39 @@ def test_audit_and_scorer_agree_on_random_rooms(boxes, set_id) -> None:
         if f.rule.startswith("route.") and f.measured is not None:
             assert f.measured < width, f.message
     assert floor_of(plan, rules).free["r"].area > 0
+
+
+def test_ada_bed_alley_reading_of_the_alcove_rule() -> None:
+    # 2010 ADA §305.7.2 (parallel approach: an alcove deeper than 15 in is at least 60 in wide)
+    # read as documented in docs/audit.md: the 30 x 48 in space (§305.3) may stand anywhere
+    # along the bed's side, so at the alley's open foot end it is confined on two sides only
+    rules = load_ruleset("ada-2010")
+    plan = _bed_plan("ada-2010", "bed-us-queen", 762)
+    assert _find(audit(plan, rules), "zone.alcove", "left zone of bed").ok
+    # the other reading, chosen by an override: the whole zone is the space, confined by the
+    # bed, the wall and the head wall, so the alley must be 60 in = 1524 mm wide
+    whole = load_ruleset("ada-2010", {"zone.space_length": 0})
+    found = _find(audit(plan, whole), "zone.alcove", "left zone of bed")
+    assert not found.ok and found.required == pytest.approx(60 * 25.4)
+    assert found.measured == pytest.approx(762, abs=1)
+    assert _find(audit(_bed_plan("ada-2010", "bed-us-queen", 1524), whole), "zone.alcove",
+                 "left zone of bed").ok
+
+
+@pytest.mark.parametrize("span, ok", [(900, False), (914, True), (1000, True)])
+def test_forward_approach_alcove_at_36_inches(span: int, ok: bool) -> None:
+    # 2010 ADA §305.7.1: a forward-approach space in an alcove deeper than 24 in needs the
+    # alcove 36 in (914.4 mm; 914 mm is the whole millimetre) wide. A chest of drawers
+    # (forward approach, 48 in deep zone) between two tall blocks 1800 mm deep.
+    rules = load_ruleset("ada-2010")
+    x = 2000
+    side = (span - 800) // 2
+    chest = Piece("chest", "chest-of-drawers", ("r",), placement=Placement(x, 0, 0, "r"))
+    left = _block("left", x - side - 600, 0, x - side, 1800)
+    right = _block("right", x + 800 + (span - 800 - side), 0, x + 800 + (span - 800 - side) + 600,
+                   1800)
+    plan = _plan((chest, left, right), "ada-2010", size=(5000, 5000), door_y=5000, cupboard=False)
+    found = _find(audit(plan, rules), "zone.alcove", "front zone of chest")
+    assert found.ok is ok
+    if not ok:
+        assert found.measured == pytest.approx(span, abs=1)

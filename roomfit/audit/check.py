@@ -10,7 +10,8 @@ Rule ids (see ``docs/audit.md`` for each method and the published wording it fol
 
 - ``piece.room``, ``piece.inside``, ``piece.overlap``, ``wall.against``, ``zone.clear``,
   ``door.width``, ``door.swing_clear``, ``door.approach``, ``window.clear``: the clearance
-  rules (:mod:`roomfit.audit.clearances`);
+  rules (:mod:`roomfit.audit.clearances`); ``zone.alcove``: clear floor spaces in alcoves
+  (2010 ADA §305.7, :mod:`roomfit.audit.alcove`);
 - ``route.reach``, ``route.width``, ``route.trip``: circulation, judged by the walkway
   engine (:mod:`roomfit.audit.circulation`, :mod:`roomfit.audit.walkway`);
 - ``turning.space``: a turning space of ``turning.size`` in each room when the set asks for
@@ -23,6 +24,7 @@ turning circle and a 1499 mm room does not.
 
 from __future__ import annotations
 
+from roomfit.audit.alcove import check_alcoves
 from roomfit.audit.circulation import check_routes, check_trips
 from roomfit.audit.clearances import (
     WALL_SHARE,
@@ -82,6 +84,7 @@ def audit(plan: Plan, rules: RuleSet, *, widths: bool = True) -> Audit:
     findings += check_overlap(floor)
     findings += check_walls(floor)
     findings += check_zones(floor)
+    findings += check_alcoves(floor)
     findings += check_doors(floor)
     findings += check_windows(floor)
     turning, spaces = check_turning(floor)

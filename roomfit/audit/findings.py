@@ -35,6 +35,7 @@ __all__ = [
 
 #: Every rule id an audit can report, in the order the summary lists them.
 RULE_IDS = ("piece.room", "piece.inside", "piece.overlap", "wall.against", "zone.clear",
+            "zone.alcove",
             "door.width", "door.swing_clear", "door.approach", "window.clear", "route.reach",
             "route.width", "route.trip", "turning.space")
 

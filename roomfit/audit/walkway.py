@@ -56,6 +56,7 @@ from collections.abc import Callable
 from dataclasses import dataclass, field
 from enum import StrEnum
 
+import shapely
 from shapely import LineString, Point, Polygon
 from shapely.geometry.base import BaseGeometry
 from shapely.ops import nearest_points, unary_union
@@ -67,6 +68,7 @@ from roomfit.rules.sets import RuleSet
 
 __all__ = [
     "QUAD_SEGS",
+    "MAX_VERTICES",
     "TOUCH_MM",
     "TOUCH_MM2",
     "WIDTH_STEP",
@@ -104,6 +106,12 @@ WIDTH_STEP = 5.0
 WIDTH_TOL = 0.5
 #: Segments per quarter circle in the round joins of the shrinking.
 QUAD_SEGS = 8
+#: Most vertices of one room's free floor the engine works on: a floor with more (a wall
+#: drawn with thousands of teeth) is first shrunk by a small tolerance and simplified by
+#: it (doubling from 1 mm until it has at most this many), which never widens a passage
+#: and narrows one by at most twice the tolerance (:attr:`Floor.simplified_mm`). This is
+#: the declared bound that keeps shrinking and route scoring near-linear in the vertices.
+MAX_VERTICES = 2000
 
 
 def polys(g: BaseGeometry) -> list[Polygon]:
@@ -167,6 +175,7 @@ class Floor:
     cache: dict[tuple[float, str], Walkway] = field(default_factory=dict)
     bases: dict[tuple[str, str], tuple[float, float]] = field(default_factory=dict)
     pinch_longest: float = 0.0   # longest narrow stretch kept by the pinch walkway (mm)
+    simplified_mm: float = 0.0   # largest tolerance a free floor was simplified by (mm)
     _zones: list[Target] | None = None
 
 
@@ -180,7 +189,23 @@ def floor_of(plan: Plan, rules: RuleSet) -> Floor:
                         + list(fixtures.values()))
     free = {rid: poly.difference(taken) if not taken.is_empty else poly
             for rid, poly in rooms.items()}
-    return Floor(plan, rules, placed, rooms, fixtures, free, geo.door_shapes(plan, rules))
+    tol = {rid: 0.0 for rid in free}
+    for rid, g in free.items():
+        free[rid], tol[rid] = _bounded(g)
+    return Floor(plan, rules, placed, rooms, fixtures, free, geo.door_shapes(plan, rules),
+                 simplified_mm=max(tol.values(), default=0.0))
+
+
+def _bounded(g: BaseGeometry) -> tuple[BaseGeometry, float]:
+    """``g`` with at most :data:`MAX_VERTICES` vertices, never larger than ``g``: shrunk by a
+    tolerance (mitre joins, which shrink at least as much as round ones) and simplified by
+    it (Douglas-Peucker moves the outline by at most the tolerance); the tolerance used."""
+    tol = 0.0
+    out = g
+    while shapely.get_num_coordinates(out) > MAX_VERTICES:
+        tol = tol * 2 if tol else 1.0
+        out = g.buffer(-tol, join_style="mitre").simplify(tol, preserve_topology=True)
+    return out, tol
 
 
 def standing(floor: Floor) -> list[tuple[str, Placed]]:
@@ -225,11 +250,12 @@ class Walkway:
     root: list[int]
     start: set[int]
     mouths: dict[tuple[str, str], tuple[Point, list[int]]]
+    slack: float = 0.0   # the floor's simplification allowance (mm): see MAX_VERTICES
     _swept: dict[tuple[str, int], BaseGeometry] = field(default_factory=dict)
     _zone_roots: dict[int, set[int]] | None = None
 
     def tol(self, depth: float) -> float:
-        return max(0.0, self.width / 2 - depth) + TOUCH_MM
+        return max(0.0, self.width / 2 - depth) + TOUCH_MM + self.slack
 
     def near(self, room: str, g: BaseGeometry, depth: float) -> list[int]:
         """Parts of ``room`` whose centres reach ``depth`` mm into ``g``."""
@@ -241,7 +267,7 @@ class Walkway:
 
     def side_reach(self) -> float:
         """How far (mm) from a body centre a side counts as adjoined: ``r * sqrt(2)``."""
-        return erosion(self.width) * math.sqrt(2) + TOUCH_MM
+        return erosion(self.width) * math.sqrt(2) + TOUCH_MM + self.slack
 
     def reach(self, room: str, root: int) -> BaseGeometry:
         """Floor within ``r * sqrt(2)`` of the body centres of one joined set in ``room``
@@ -292,7 +318,7 @@ def walkway(floor: Floor, width: float, floors: dict[str, BaseGeometry] | None =
         shrunk = floors[rid] if floors is not None else shrink(free, width)
         comps += [(rid, p) for p in polys(shrunk)]
     parent = list(range(len(comps)))
-    state = Walkway(width, comps, parent, set(), {})
+    state = Walkway(width, comps, parent, set(), {}, slack=2 * floor.simplified_mm)
     start: list[int] = []
     for ds in floor.doors:
         near: list[int] = []
