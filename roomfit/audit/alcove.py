@@ -14,11 +14,11 @@ zone's own frame, with ``n`` out from the element and ``t`` along it:
 - **Ends** (the alcove proper): the free floor beside the zone, in the band deeper than the
   alcove depth, is measured along ``t`` until a wall, fitting or piece; when both ends are
   closed within the alcove width, that span must reach the alcove width.
-- **Outer side** (a space between the element and a wall, open at one end, like the floor
-  between a bed and a wall): the reading chosen (``docs/audit.md``) is that the published
-  space is ``zone.space_length`` long and may stand anywhere along the zone, so when the zone
-  is longer than that, the space stands at the open end and is confined on two sides only
-  (element and outer side). When the zone is no longer than the space, or a rule-set override
+- **Outer side** (a space between the element and a wall standing at its far side, within
+  1 in, open at one end, like the floor between a bed and a wall): the reading chosen
+  (``docs/audit.md``) is that the published space is ``zone.space_length`` long and may
+  stand anywhere along the zone, so when the zone is longer than that, the space stands at
+  the open end and is confined on two sides only (element and outer side). When the zone is no longer than the space, or a rule-set override
   sets ``zone.space_length`` to 0 (the other reading: the whole zone is the space), a zone
   closed at one end is confined on three sides and the distance from the element to the outer
   obstacle must reach the alcove width.
@@ -36,6 +36,9 @@ from roomfit.audit.walkway import TOUCH_MM, WIDTH_TOL, Floor, standing
 
 __all__ = ["ALCOVE_RULES", "check_alcoves"]
 
+#: An obstacle within this distance (mm) beyond a space's far side confines that side (1 in:
+#: it stands at the space's edge; one farther off leaves floor to turn in).
+_ADJOIN = 25.4
 #: The rules a set states to ask for the alcove check.
 ALCOVE_RULES = ("zone.alcove_forward_depth", "zone.alcove_forward_width",
                 "zone.alcove_parallel_depth", "zone.alcove_parallel_width", "zone.space_length")
@@ -138,7 +141,7 @@ def _one(floor: Floor, pid: str, side: str, zp: Polygon, n: tuple[int, int],
     lo, hi = _limits(solid, n, t0, t1, face, far, need)
     closed_end = lo is not None or hi is not None
     slides = space > 0 and length > space + TOUCH_MM and not forward
-    across = _outer(solid, n, t0, t1, face, need)
+    across = _outer(solid, n, t0, t1, face, depth + _ADJOIN)
     if closed_end and across is not None and not slides and length > deep \
             and across < need - WIDTH_TOL:
         return Finding("zone.alcove", False,

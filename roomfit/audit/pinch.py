@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import math
 
+import shapely
 from shapely.geometry.base import BaseGeometry
 from shapely.ops import unary_union
 
@@ -98,7 +99,7 @@ def _pinch_room(free: BaseGeometry, R: float, p: float, length: float, segs: int
         unswept = n.buffer(p, quad_segs=segs).intersection(free).difference(swept)
         if unswept.is_empty or unswept.area <= TOUCH_MM2:
             continue
-        xs = list(unswept.minimum_rotated_rectangle.exterior.coords)
+        xs = list(shapely.get_coordinates(shapely.minimum_rotated_rectangle(unswept)))
         ln = min(math.dist(xs[0], xs[1]), math.dist(xs[1], xs[2]))
         if ln > length + TOUCH_MM:
             drop.append(n)

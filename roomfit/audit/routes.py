@@ -38,6 +38,7 @@ from __future__ import annotations
 import math
 from collections.abc import Sequence
 from dataclasses import dataclass, field
+from typing import Any
 
 import networkx as nx
 import numpy as np
@@ -214,7 +215,8 @@ def _reflex_vertices(poly: BaseGeometry) -> list[XY]:
 def _corners(part: Polygon, slack: float) -> tuple[list[XY], BaseGeometry, float]:
     """The part's reflex vertices (at most :data:`MAX_CORNERS`, simplifying as needed), the
     floor a segment must stay in, and the simplification tolerance used (0 when none)."""
-    verts, shape, tol = _reflex_vertices(part), part, 0.0
+    verts, tol = _reflex_vertices(part), 0.0
+    shape: BaseGeometry = part
     while len(verts) > MAX_CORNERS:
         tol = tol * 2 if tol else _SIMPLIFY
         shape = part.simplify(tol, preserve_topology=True)
@@ -288,8 +290,8 @@ def _door_links(space: _Space, ds: DoorShape) -> None:
                                      weight=math.dist((q.x, q.y), space.nodes[key]))
     if len(sides) == 2:
         for k in range(len(offsets)):
-            p, q = ("m", d.id, sides[0], k), ("m", d.id, sides[1], k)
-            space.graph.add_edge(p, q, weight=math.dist(space.nodes[p], space.nodes[q]))
+            one, two = ("m", d.id, sides[0], k), ("m", d.id, sides[1], k)
+            space.graph.add_edge(one, two, weight=math.dist(space.nodes[one], space.nodes[two]))
 
 
 def _zone_point(zone: BaseGeometry) -> XY:
@@ -349,7 +351,7 @@ def _shortest(space: _Space, a: Target, b: Target) -> list[XY] | None:
         return None
     starts, ends = _ends(space, a, common), _ends(space, b, common)
     g = space.graph
-    added: list[object] = ["A", "B"]
+    added: list[Any] = ["A", "B"]
     try:
         g.add_nodes_from(["A", "B"])
         for tag, pts, hub in (("s", starts, "A"), ("e", ends, "B")):
@@ -392,7 +394,7 @@ def _turns(points: Sequence[XY]) -> int:
     """Changes of heading by more than :data:`TURN_DEGREES` along the route, simplified to
     within :data:`_BEND` first (Douglas-Peucker)."""
     if len(points) > 2:
-        points = list(LineString(points).simplify(_BEND).coords)
+        points = [(float(c[0]), float(c[1])) for c in LineString(points).simplify(_BEND).coords]
     pts: list[XY] = []
     for p in points:
         if not pts or math.dist(pts[-1], p) > _MERGE:
@@ -447,8 +449,8 @@ class _Scorer:
 
 
 def _trip(sc: _Scorer, trip: Trip, origin: str | XY, target: str | XY) -> TripScore:
-    base = {"origin": trip.origin, "target": trip.target, "label": trip.label,
-            "per_day": trip.per_day, "night": trip.night}
+    base: dict[str, Any] = {"origin": trip.origin, "target": trip.target, "label": trip.label,
+                            "per_day": trip.per_day, "night": trip.night}
     name = trip.label or f"{trip.origin} to {trip.target}"
     a, b = _targets_of(sc.floor, origin), _targets_of(sc.floor, target)
     space = sc.space("full")

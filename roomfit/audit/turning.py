@@ -145,7 +145,7 @@ def _circle(floor: BaseGeometry, size: float) -> tuple[float, tuple[float, float
     """The largest circle in ``floor`` (diameter, rounded down to 0.1 mm, and centre) and
     centres where a circle of ``size`` fits, each confirmed by its exact distance to the
     floor's outline (the shrunk floor's arcs are chords, a little too generous)."""
-    mic = shapely.maximum_inscribed_circle(floor, _MIC_TOL)
+    mic = shapely.maximum_inscribed_circle(floor, _MIC_TOL)  # type: ignore[call-overload]
     (cx, cy), (bx, by) = mic.coords[0], mic.coords[1]
     # the centre's own clearance: a lower bound of the largest circle within 2 * _MIC_TOL
     # of it, to 0.1 mm (messages then round down to the whole millimetre)

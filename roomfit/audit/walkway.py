@@ -177,6 +177,7 @@ class Floor:
     pinch_longest: float = 0.0   # longest narrow stretch kept by the pinch walkway (mm)
     simplified_mm: float = 0.0   # largest tolerance a free floor was simplified by (mm)
     _zones: list[Target] | None = None
+    _links: tuple[list[list[LineString]], list[tuple[int, int]]] | None = None
 
 
 def floor_of(plan: Plan, rules: RuleSet) -> Floor:
@@ -371,9 +372,9 @@ def _zones(floor: Floor) -> list[Target]:
             out.append(_zone_target(f"the {z.side} zone of {pid}", pc.placement.room,
                                     g if polys(g) else zp, (pid,), len(out)))
     for f in floor.plan.fixtures:
-        zp = geo.fixture_zone(f)
-        if zp is not None and f.room in floor.rooms:
-            out.append(_zone_target(f"the zone of fitting {f.id}", f.room, zp, (f.id,),
+        fz = geo.fixture_zone(f)
+        if fz is not None and f.room in floor.rooms:
+            out.append(_zone_target(f"the zone of fitting {f.id}", f.room, fz, (f.id,),
                                     len(out)))
     floor._zones = out
     return out
@@ -400,6 +401,21 @@ def _clear(floor: Floor, t: Target) -> bool:
     return all(t.geom.intersection(s).area <= TOUCH_MM2 for s in solid if t.geom.intersects(s))
 
 
+def _zone_links(floor: Floor) -> tuple[list[list[LineString]], list[tuple[int, int]]]:
+    """The sides of each zone, and the pairs (k, m) where one full side of zone k adjoins
+    the clear zone m (the same for every width: computed once per floor)."""
+    if floor._links is None:
+        zones = _zones(floor)
+        sides = [_sides(z.geom) for z in zones]
+        clear = [k for k, z in enumerate(zones) if _clear(floor, z)]
+        grown = {k: zones[k].geom.buffer(TOUCH_MM) for k in clear}
+        links = [(k, m) for k, z in enumerate(zones) for m in clear
+                 if m != k and zones[m].room == z.room
+                 and any(grown[m].covers(s) for s in sides[k])]
+        floor._links = (sides, links)
+    return floor._links
+
+
 def _zone_roots(floor: Floor, st: Walkway) -> dict[int, set[int]]:
     """For each zone (index into :func:`_zones`), the roots of the joined parts that serve
     it: directly (one full side adjoins their bodies) or through a chain of clear zones,
@@ -407,22 +423,15 @@ def _zone_roots(floor: Floor, st: Walkway) -> dict[int, set[int]]:
     if st._zone_roots is not None:
         return st._zone_roots
     zones = _zones(floor)
-    served: dict[int, set[int]] = {}
-    sides = [_sides(z.geom) for z in zones]
-    for k, z in enumerate(zones):
-        served[k] = _adjoined(st, z, sides[k])
-    clear = [k for k, z in enumerate(zones) if _clear(floor, z)]
-    grown = {k: zones[k].geom.buffer(TOUCH_MM) for k in clear}
+    sides, links = _zone_links(floor)
+    served: dict[int, set[int]] = {k: _adjoined(st, z, sides[k]) for k, z in enumerate(zones)}
     changed = True
     while changed:  # adjoining clear zones pass on the parts that serve them
         changed = False
-        for k, z in enumerate(zones):
-            for m in clear:
-                if m == k or zones[m].room != z.room or not served[m] - served[k]:
-                    continue
-                if any(grown[m].covers(s) for s in sides[k]):
-                    served[k] |= served[m]
-                    changed = True
+        for k, m in links:
+            if served[m] - served[k]:
+                served[k] |= served[m]
+                changed = True
     st._zone_roots = served
     return served
 
@@ -572,16 +581,17 @@ def _pairs(floor: Floor, st: Walkway, start: set[int], t_roots: set[int],
 
 
 def _next_to(floor: Floor, where: Point) -> tuple[str, ...]:
-    """Pieces and fittings of the room at ``where`` (and doors there) within a route width
-    of it, nearest first: the blockers to name. Pieces behind a wall are left out."""
+    """Pieces and fittings within a route width of ``where``, nearest first: the blockers to
+    name. Only those of the room at ``where``, and those standing in a doorway near it
+    (within 50 mm of its opening); pieces behind a wall are left out."""
     route = floor.rules.get("route.width").exact_mm
     room = room_at(floor, where)
+    doorways = [ds.opening.buffer(50.0) for ds in floor.doors
+                if ds.opening.distance(where) <= route]
     near: list[tuple[float, str]] = []
-    for pid, pc in standing(floor):
-        if pc.placement.room == room:
-            near.append((pc.shape.distance(where), pid))
-    for f in floor.plan.fixtures:
-        if f.room == room:
-            near.append((floor.fixtures[f.id].distance(where), f.id))
+    solid = [(pid, pc.placement.room, pc.shape) for pid, pc in standing(floor)]
+    solid += [(f.id, f.room, floor.fixtures[f.id]) for f in floor.plan.fixtures]
+    for sid, rid, shape in solid:
+        if rid == room or any(shape.intersects(d) for d in doorways):
+            near.append((shape.distance(where), sid))
     return tuple(i for d, i in sorted(near) if d <= route)
-
