@@ -102,12 +102,14 @@ def test_iso_bedroom_exactly_as_wide_as_bed_and_zones_is_furnished() -> None:
 
 
 def test_a_sound_cut_removes_only_layouts_the_audit_fails() -> None:
-    # a bed 300 mm from the west wall leaves a strip far narrower than the route: the cut
-    # may rule out moves below (shortfall - margin) / DIVISOR, and every such move fails too
+    # a bed 600 mm from the south wall, in front of the door, leaves a passage far narrower
+    # than the route on the way in (a strip beside a bed is not itself a route: its use
+    # zone needs only to adjoin one, 2010 ADA §305.6): the cut may rule out moves below
+    # (shortfall - margin) / DIVISOR, and every such move fails too
     text = _bedroom(3600, "ada-2010")
     plan = loads_plan(text, "edge.toml")
     rules = rules_for(plan)
-    where = {"bed1": Placement(300, 1600, 180, "bed")}
+    where = {"bed1": Placement(300, 600, 180, "bed")}
     verdict = audit(plan.with_layout(tuple(where.items())), rules, widths=False)
     assert not verdict.passed
     cut = sound_cut(["bed1"], where, verdict.failures, lambda keep: verdict,
@@ -116,7 +118,7 @@ def test_a_sound_cut_removes_only_layouts_the_audit_fails() -> None:
     step = max(1, (cut.move - 1) // 3)
     for dx in range(-(cut.move - 1), cut.move, step):
         for dy in (-(cut.move - 1), 0):
-            moved = {"bed1": Placement(300 + dx, 1600 + dy, 180, "bed")}
+            moved = {"bed1": Placement(300 + dx, 600 + dy, 180, "bed")}
             assert not audit(plan.with_layout(tuple(moved.items())), rules, widths=False).passed
     short = rules.mm("route.pinch_width") - min(f.measured for f in verdict.failures
                                                  if f.rule == "route.reach")

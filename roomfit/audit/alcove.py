@@ -18,10 +18,11 @@ zone's own frame, with ``n`` out from the element and ``t`` along it:
   1 in, open at one end, like the floor between a bed and a wall): the reading chosen
   (``docs/audit.md``) is that the published space is ``zone.space_length`` long and may
   stand anywhere along the zone, so when the zone is longer than that, the space stands at
-  the open end and is confined on two sides only (element and outer side). When the zone is no longer than the space, or a rule-set override
-  sets ``zone.space_length`` to 0 (the other reading: the whole zone is the space), a zone
-  closed at one end is confined on three sides and the distance from the element to the outer
-  obstacle must reach the alcove width.
+  the open end and is confined on two sides only (element and outer side). When the zone
+  is no longer than the space, or a rule-set override sets ``zone.space_length`` to 0 (the
+  other reading: the whole zone is the space), a zone closed at one end is confined on
+  three sides and the distance from the element to the outer obstacle must reach the
+  alcove width.
 """
 
 from __future__ import annotations
