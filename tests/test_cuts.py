@@ -181,7 +181,8 @@ def test_every_fix_shown_is_confirmed_by_a_solve_and_a_false_one_is_dropped() ->
     # ISO 21542 asks 1500 mm of clear floor beside the bed: a 1600 mm bed with 1500 + 900 mm
     # side zones needs 4000 mm, the room is 3600 mm wide: provably impossible
     from roomfit.solve.explain import Explanation, Fix
-    from roomfit.solve.search import _Clock, _confirmed
+    from roomfit.solve.group import Clock as _Clock
+    from roomfit.solve.search import _confirmed
 
     text = _bedroom(3600, "iso-21542", wardrobe=True)
     plan = loads_plan(text, "edge.toml")
