@@ -128,7 +128,7 @@ def run(items: list[Certified], time_limit: float, seed: int = 0) -> dict[str, A
     """Solve every instance from scratch; rows and the summary (see the module docstring)."""
     from roomfit.solve.search import SolveOptions, solve
 
-    rows = []
+    rows: list[dict[str, Any]] = []
     for c in items:
         started = time.monotonic()
         result = solve(c.plan, c.rules, SolveOptions(candidates=1, time_limit=time_limit,
