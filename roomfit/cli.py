@@ -144,14 +144,30 @@ def _plan_and_rules(args: argparse.Namespace) -> tuple[Plan, RuleSet]:
 
 def _cmd_draw(args: argparse.Namespace) -> int:
     from roomfit.files import atomic_write, refuse_input_overwrite
+    from roomfit.present.clearances import parse_layers
     from roomfit.present.draw import draw_svg
 
+    try:
+        show = parse_layers(args.show)
+    except ValueError as e:
+        raise RoomfitError(Problem("--show", str(e))) from None
     refuse_input_overwrite(args.output, args.plan)
     plan, rules = _plan_and_rules(args)
-    out = atomic_write(args.output, draw_svg(plan, rules, title=args.title))
+    findings, routes = (), None
+    if "turning" in show:  # the turning spaces drawn are the ones the audit finds
+        from roomfit.audit.check import audit
+
+        findings = audit(plan, rules).findings
+    if "routes" in show:
+        from roomfit.audit.routes import score_routes
+
+        routes = score_routes(plan, rules)
+    out = atomic_write(args.output, draw_svg(plan, rules, title=args.title, findings=findings,
+                                             routes=routes, show=show))
     placed = sum(p.placement is not None for p in plan.furniture)
     print(f"{out}: drawing of {_titled(plan)} to scale (1 unit = 1 mm), {_count(plan.rooms, 'room')}, "
-          f"{placed} of {len(plan.furniture)} pieces placed, rule set {rules.id}")
+          f"{placed} of {len(plan.furniture)} pieces placed, rule set {rules.id}; layers: "
+          f"{', '.join(show) or 'none'}")
     print(CAUTION)
     return EXIT_OK
 
@@ -184,7 +200,8 @@ def _cmd_check(args: argparse.Namespace) -> int:
     if args.draw:
         from roomfit.present.draw import draw_svg
 
-        atomic_write(args.draw, draw_svg(plan, rules, marks=marks_for(result)))
+        atomic_write(args.draw, draw_svg(plan, rules, marks=marks_for(result),
+                                         findings=result.findings))
     if args.json:
         record = {"plan": plan.name, "rules": rules.id, **audit_record(result),
                   "quality": quality_record(groups), "caution": CAUTION}
@@ -246,15 +263,16 @@ def _cmd_solve(args: argparse.Namespace) -> int:
             from roomfit.present.draw import draw_svg
         except ImportError:  # drawing not available: the plan files are still written
             draw_svg = None
-        if draw_svg is not None:
-            svg = draw_svg(furnished, rules, title=f"{plan.name}: candidate {c.rank + 1}")
-            files.append(str(run.add(f"{stem}-{c.rank + 1}.svg", svg)))
         verdict = c.audit if c.audit is not None else audit(furnished, rules)
+        routes = c.routes if c.routes is not None else score_routes(furnished, rules)
+        if draw_svg is not None:  # with its routes, turning spaces and clearances
+            svg = draw_svg(furnished, rules, title=f"{plan.name}: candidate {c.rank + 1}",
+                           findings=verdict.findings, routes=routes)
+            files.append(str(run.add(f"{stem}-{c.rank + 1}.svg", svg)))
         ok = sum(f.ok for f in verdict.findings)
         gap = "optimal" if c.optimal else f"gap {c.gap:.0%}"
         check = (f"pass {ok}/{len(verdict.findings)}" if verdict.passed else
                  f"pass {ok}/{len(verdict.findings)} + building" if result.building else "FAIL")
-        routes = c.routes if c.routes is not None else score_routes(furnished, rules)
         walking = f"{routes.walking_m_per_day:.0f} m/day"
         print(f"{c.rank + 1:>9}  {c.objective:>9g}  {gap:>13}  {walking:>10}  {check:<7}  "
               f"{', '.join(files)}")
@@ -457,6 +475,9 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--rules", metavar="SET", help="rule set for the use zones (default: the plan's)")
     p.add_argument("--title", type=_text_argument,
                    help="headline of the title block (default: the plan's name)")
+    p.add_argument("--show", default="all", metavar="LAYERS",
+                   help="layers to draw, comma-separated: zones, routes, turning, dimensions "
+                        "(default all; 'none' for the bare plan)")
     p.set_defaults(func=_cmd_draw)
     p = sub.add_parser("export", help="export a plan as GeoJSON in local coordinates (metres)")
     p.add_argument("plan", help="plan file (.toml)")

@@ -126,7 +126,8 @@ def test_marks_paths_and_unplaced_pieces() -> None:
     assert fail_outline is not None and fail_outline.get("stroke") == STYLE["fail"]
     for label in ("Bed side zone blocked", "Narrow passage", "No turning space anywhere"):
         assert label in text
-    night, day = _classed(root, "g", "path")
+    day, night = _classed(root, "g", "path")  # night routes drawn last, on top
+    assert _classed(root, "g", "night") == [night]
     assert night.find("s:polyline", NS).get("stroke-dasharray")  # type: ignore[union-attr]
     assert day.find("s:polyline", NS).get("stroke-dasharray") is None  # type: ignore[union-attr]
     assert re.search(r"Not placed: .*" + re.escape(plan.furniture[1].id), text)
@@ -280,7 +281,7 @@ def test_walls_up_to_600_mm_thick_are_drawn_solid() -> None:
     from shapely import Point as P
 
     from roomfit.plan.data import Room
-    from roomfit.present.draw import _wall_mass
+    from roomfit.present.building import wall_mass as _wall_mass
 
     def two(gap: int) -> Plan:
         a = Room("a", "A", "hall", ((0, 0), (2000, 0), (2000, 3000), (0, 3000)))

@@ -13,6 +13,10 @@ nearest millimetre only at the end, so ``"60 in"`` is 1524 mm (standards print 1
 1067
 >>> format_length(1524, "in")
 '60 in'
+>>> print(format_length(1734, "ft"))
+5' 8 1/4"
+>>> format_area(12_000_000, "ft")
+'12.00 m² (129.2 sq ft)'
 """
 
 from __future__ import annotations
@@ -23,7 +27,9 @@ from fractions import Fraction
 from roomfit.errors import Problem, UnitError
 from roomfit.plan.limits import MAX_COORDINATE_MM
 
-__all__ = ["UNITS", "MM_PER", "FORMS", "parse_length", "to_unit", "format_length", "inches"]
+__all__ = ["UNITS", "IMPERIAL", "MM_PER", "FORMS", "parse_length", "to_unit", "format_length",
+           "inches", "format_inches", "format_feet_inches", "show_length", "format_area",
+           "write_length"]
 
 #: Millimetres per unit, exact.
 MM_PER: dict[str, Fraction] = {
@@ -34,6 +40,10 @@ MM_PER: dict[str, Fraction] = {
     "ft": Fraction(3048, 10),
 }
 UNITS = tuple(MM_PER)
+#: Units whose plans are shown in feet and inches.
+IMPERIAL = ("in", "ft")
+#: Square millimetres per square foot, exact (304.8 mm squared).
+_MM2_PER_SQFT = Fraction(3048, 10) ** 2
 
 #: A number as a plan writes it: digits with an optional decimal part (no exponent, no
 #: thousands separator), short enough to stay exact.
@@ -157,8 +167,83 @@ def to_unit(mm: int | float, unit: str) -> float:
     return float(Fraction(str(mm)) / MM_PER[unit])
 
 
+def _quarters(mm: int | float) -> int:
+    """``mm`` in whole quarter inches, rounded half away from zero."""
+    return _round_half_away(Fraction(str(mm)) / MM_PER["in"] * 4)
+
+
+def _inch_text(quarters: int) -> str:
+    """Whole and quarter inches: ``34 -> "8 1/2"``, ``1 -> "1/4"``, ``0 -> "0"``."""
+    whole, q = divmod(quarters, 4)
+    frac = {0: "", 1: "1/4", 2: "1/2", 3: "3/4"}[q]
+    if whole and frac:
+        return f"{whole} {frac}"
+    return frac or str(whole)
+
+
+def format_inches(mm: int | float) -> str:
+    """``mm`` in inches to the nearest 1/4 in: ``format_inches(920) == "36 1/4 in"``."""
+    q = _quarters(mm)
+    return ("-" if q < 0 else "") + _inch_text(abs(q)) + " in"
+
+
+def format_feet_inches(mm: int | float) -> str:
+    """``mm`` in feet and inches to the nearest 1/4 in, as on a drawing: ``5' 8 1/4"``;
+    under a foot only inches (``8 1/4"``), whole feet with ``0"``."""
+    q = _quarters(mm)
+    feet, rest = divmod(abs(q), 48)
+    sign = "-" if q < 0 else ""
+    if not feet:
+        return f'{sign}{_inch_text(rest)}"'
+    return f"{sign}{feet}' {_inch_text(rest)}\""
+
+
+def show_length(mm: int | float, unit: str) -> str:
+    """How a plan measured in ``unit`` shows a length to its reader: feet and inches for
+    plans in ``in`` or ``ft``, whole millimetres otherwise."""
+    if unit in IMPERIAL:
+        return format_feet_inches(mm)
+    return f"{mm:.0f} mm"
+
+
+def format_area(mm2: float, unit: str) -> str:
+    """An area in m² (two decimals), with square feet beside it for plans in ``in`` or ``ft``."""
+    text = f"{mm2 / 1e6:.2f} m²"
+    if unit in IMPERIAL:
+        text += f" ({float(Fraction(str(mm2)) / _MM2_PER_SQFT):.1f} sq ft)"
+    return text
+
+
+def write_length(mm: int, unit: str) -> int | float | str:
+    """``mm`` as a plan file in ``unit`` stores it, reading back as the same millimetre: a
+    whole number when exact; for plans in ``in`` or ``ft`` otherwise a feet-and-inches
+    string with the shortest decimal inches (``"17 ft 4.75 in"``); else the shortest decimal
+    in ``unit``."""
+    if unit == "mm":
+        return mm
+    v = Fraction(mm) / MM_PER[unit]
+    if v.denominator == 1:
+        return int(v)
+    for digits in range(1, 7):
+        out: int | float | str = round(float(v), digits)
+        if unit in IMPERIAL and mm > 0:  # feet and inches; a negative stays a decimal
+            feet, inch = divmod(Fraction(mm) / MM_PER["in"], 12)
+            if round(float(inch), digits) >= 12:
+                continue
+            text = f"{round(float(inch), digits):.{digits}f}".rstrip("0").rstrip(".")
+            out = f"{int(feet)} ft {text} in" if feet else f"{text} in"
+        if parse_length(out, unit) == mm:
+            return out
+    return float(v)
+
+
 def format_length(mm: int | float, unit: str = "mm") -> str:
-    """Human-readable length: ``format_length(1524, "in") == "60 in"``."""
+    """Human-readable length: ``format_length(1524, "in") == "60 in"``; inches and feet to
+    the nearest 1/4 in (:func:`format_inches`, :func:`format_feet_inches`)."""
+    if unit == "in":
+        return format_inches(mm)
+    if unit == "ft":
+        return format_feet_inches(mm)
     v = to_unit(mm, unit)
     digits = {"mm": 0, "cm": 1, "m": 2, "in": 1, "ft": 2}[unit]
     s = f"{v:.{digits}f}".rstrip("0").rstrip(".") if digits else f"{v:.0f}"

@@ -1,12 +1,13 @@
 """Writing plan files (TOML), in the plan's own unit and atomically.
 
 read -> write -> read gives an equal :class:`~roomfit.plan.data.Plan`: each length is written
-as the shortest number in the plan's unit that reads back as the same millimetre.
+as the shortest number in the plan's unit that reads back as the same millimetre, and in plans
+measured in feet or inches as a feet-and-inches string when not a whole number
+(:func:`roomfit.plan.units.write_length`).
 """
 
 from __future__ import annotations
 
-from fractions import Fraction
 from pathlib import Path
 from typing import Any
 
@@ -14,31 +15,16 @@ import tomli_w
 
 from roomfit.files import atomic_write
 from roomfit.plan.data import FORMAT_VERSION, VERSION_KEY, Piece, Plan
-from roomfit.plan.units import MM_PER, parse_length
+from roomfit.plan.units import write_length
 
 __all__ = ["dumps_plan", "write_plan"]
-
-
-def _out(mm: int, unit: str) -> int | float:
-    """``mm`` in ``unit``: a whole number when exact, else the shortest decimal that reads
-    back as the same millimetre (``5486`` mm is ``215.98`` in, not ``215.98425196850394``)."""
-    if unit == "mm":
-        return mm
-    v = Fraction(mm) / MM_PER[unit]
-    if v.denominator == 1:
-        return int(v)
-    for digits in range(1, 7):
-        short = round(float(v), digits)
-        if parse_length(short, unit) == mm:
-            return short
-    return float(v)
 
 
 def _plan_to_dict(plan: Plan) -> dict[str, Any]:
     u = plan.unit
 
-    def pt(p: tuple[int, int]) -> list[int | float]:
-        return [_out(p[0], u), _out(p[1], u)]
+    def pt(p: tuple[int, int]) -> list[int | float | str]:
+        return [write_length(p[0], u), write_length(p[1], u)]
 
     d: dict[str, Any] = {VERSION_KEY: FORMAT_VERSION, "name": plan.name}
     for k in ("client", "address", "notes"):
@@ -47,7 +33,7 @@ def _plan_to_dict(plan: Plan) -> dict[str, Any]:
     d["units"] = u
     rules: dict[str, Any] = {"set": plan.rules.set}
     if plan.rules.overrides:
-        rules["overrides"] = {k: (v if isinstance(v, str) else _out(v, u))
+        rules["overrides"] = {k: (v if isinstance(v, str) else write_length(v, u))
                               for k, v in plan.rules.overrides}
     d["rules"] = rules
     d["rooms"] = [{"id": r.id, "label": r.label, "use": r.use,
@@ -56,21 +42,21 @@ def _plan_to_dict(plan: Plan) -> dict[str, Any]:
         d["doors"] = []
         for door in plan.doors:
             dd: dict[str, Any] = {"id": door.id, "rooms": list(door.rooms), "at": pt(door.at),
-                                  "width": _out(door.width, u), "leaf": door.leaf.value}
+                                  "width": write_length(door.width, u), "leaf": door.leaf.value}
             if door.swings_into is not None:
                 dd["swings_into"] = door.swings_into
             if door.hinge is not None:
                 dd["hinge"] = door.hinge
             d["doors"].append(dd)
     if plan.windows:
-        d["windows"] = [{"id": w.id, "room": w.room, "at": pt(w.at), "width": _out(w.width, u),
-                         "sill": _out(w.sill, u)} for w in plan.windows]
+        d["windows"] = [{"id": w.id, "room": w.room, "at": pt(w.at), "width": write_length(w.width, u),
+                         "sill": write_length(w.sill, u)} for w in plan.windows]
     if plan.fixtures:
         d["fixtures"] = []
         for fx in plan.fixtures:
             fd: dict[str, Any] = {"id": fx.id, "room": fx.room, "kind": fx.kind,
                                   "label": fx.label, "outline": [pt(p) for p in fx.outline],
-                                  "height": _out(fx.height, u)}
+                                  "height": write_length(fx.height, u)}
             if fx.zone:
                 fd["zone"] = [pt(p) for p in fx.zone]
             d["fixtures"].append(fd)
@@ -98,7 +84,7 @@ def _piece_to_dict(p: Piece, u: str) -> dict[str, Any]:
         d["rooms"] = list(p.rooms)
     for k in ("width", "depth", "height"):
         if getattr(p, k) is not None:
-            d[k] = _out(getattr(p, k), u)
+            d[k] = write_length(getattr(p, k), u)
     if p.access is not None:
         d["access"] = p.access
     if p.category:
@@ -109,7 +95,7 @@ def _piece_to_dict(p: Piece, u: str) -> dict[str, Any]:
         d["groups"] = list(p.groups)
     if p.placement is not None:
         pl = p.placement
-        d["placement"] = {"x": _out(pl.x, u), "y": _out(pl.y, u), "rotation": pl.rotation,
+        d["placement"] = {"x": write_length(pl.x, u), "y": write_length(pl.y, u), "rotation": pl.rotation,
                           "room": pl.room}
     if p.locked:
         d["locked"] = True

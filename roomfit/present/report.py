@@ -54,8 +54,8 @@ def _unique_ids(svg: str, prefix: str) -> str:
 
 def drawing(row: Row, index: int = 0) -> str:
     """The arrangement drawn to scale with its routes and failed rules marked (inline SVG)."""
-    svg = draw_svg(row.plan, row.rules, marks=marks_for(row.audit), paths=row.routes.paths(),
-                   title=row.name)
+    svg = draw_svg(row.plan, row.rules, marks=marks_for(row.audit), routes=row.routes,
+                   findings=row.audit.findings, title=row.name)
     return _unique_ids(svg, f"a{index}-")
 
 
