@@ -78,3 +78,54 @@ def test_exact_forms(text, mm):
 def test_magnitudes_beyond_a_kilometre_are_refused(value):
     with pytest.raises(UnitError, match="beyond the largest length"):
         parse_length(value, "mm", "rooms[0].outline[1][0]")
+
+
+def test_feet_and_inches_to_the_quarter_inch() -> None:
+    from roomfit.plan.units import format_area, format_feet_inches, format_inches
+
+    # 1 in = 25.4 mm exactly (1959 international yard and pound agreement)
+    assert format_feet_inches(1734) == "5' 8 1/4\""  # 68.27 in -> 68 1/4 in
+    assert format_feet_inches(914.4) == "3' 0\""
+    assert format_feet_inches(6.35) == '1/4"'
+    assert format_inches(920) == "36 1/4 in"  # 36.22 in
+    # 1 sq ft = 0.09290304 m² exactly
+    assert format_area(9_290_304, "ft") == "9.29 m² (100.0 sq ft)"
+    assert format_area(9_290_304, "mm") == "9.29 m²"
+
+
+def test_lengths_written_read_back_to_the_millimetre() -> None:
+    from roomfit.plan.units import write_length
+
+    assert write_length(5302, "ft") == "17 ft 4.74 in"
+    assert write_length(914, "ft") == "2 ft 11.98 in"  # never "2 ft 12 in"
+    assert write_length(3048, "ft") == 10
+    for mm in range(-2000, 30000, 37):
+        for unit in ("in", "ft", "cm", "m", "mm"):
+            assert parse_length(write_length(mm, unit), unit) == mm
+
+
+def test_a_feet_and_inches_plan_round_trips_through_solve(tmp_path, capsys) -> None:
+    import re
+    import tomllib
+    from pathlib import Path
+
+    from roomfit.cli import main
+    from roomfit.plan.planfile import read_plan
+
+    src = Path(__file__).parent / "plans_unseen" / "feet-l-shape.toml"
+    out = tmp_path / "found"
+    assert main(["solve", str(src), "-o", str(out), "--candidates", "1", "--time-limit", "60"]) == 0
+    written = sorted(out.glob("*.toml"))[0]
+    raw = tomllib.loads(written.read_text())
+    assert raw["units"] == "ft"
+    # every placement in whole feet or a feet-and-inches string, never a long decimal of feet
+    for piece in raw["furniture"]:
+        for key in ("x", "y"):
+            v = piece["placement"][key]
+            assert isinstance(v, int) or re.fullmatch(r"(\d+ ft )?\d+(\.\d+)? in", v), v
+    again = read_plan(written)
+    original = read_plan(src)
+    assert again.rooms == original.rooms and again.doors == original.doors
+    assert all(p.placement is not None for p in again.furniture)
+    svg = sorted(out.glob("*.svg"))[0].read_text()
+    assert "sq ft" in svg and re.search(r"\d+' \d+( \d/\d)?\"", svg.replace("&quot;", '"'))
