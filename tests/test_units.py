@@ -110,7 +110,7 @@ def test_a_feet_and_inches_plan_round_trips_through_solve(tmp_path, capsys) -> N
     from pathlib import Path
 
     from roomfit.cli import main
-    from roomfit.plan.planfile import read_plan
+    from roomfit.plan.read import read_plan
 
     src = Path(__file__).parent / "plans_unseen" / "feet-l-shape.toml"
     out = tmp_path / "found"
