@@ -126,13 +126,13 @@ def test_plan_in_inches_round_trips(tmp_path: Path) -> None:
 
 
 @pytest.mark.parametrize(("unit", "mm", "written"), [
-    # 1 in = 25.4 mm: 5486 mm = 215.984.. in; 216.0 in = 5486.4 mm reads back as 5486
-    ("in", 5486, "216.0"),
+    # plans in inches or feet are written in feet and inches (1 in = 25.4 mm):
+    # 5486 mm = 215.984.. in; 216 in = 18 ft = 5486.4 mm reads back as 5486
+    ("in", 5486, '"18 ft"'),
     # 1 mm = 0.03937 in: 0.0 in would read as 0 mm, 0.04 in = 1.016 mm reads as 1
-    ("in", 1, "0.04"),
-    # 1 ft = 304.8 mm: 1000 mm = 3.2808.. ft; 3.281 ft = 1000.05 mm (3.28 ft = 999.7 mm also
-    # reads as 1000, so two decimals suffice)
-    ("ft", 1000, "3.28"),
+    ("in", 1, '"0.04 in"'),
+    # 1000 mm = 39.370.. in = 3 ft 3.37 in (3.4 in would read back as 1001 mm)
+    ("ft", 1000, '"3 ft 3.37 in"'),
     ("cm", 1235, "123.5"),
 ])
 def test_lengths_are_written_as_short_decimals(unit: str, mm: int, written: str) -> None:

@@ -227,11 +227,9 @@ def write_length(mm: int, unit: str) -> int | float | str:
     for digits in range(1, 7):
         out: int | float | str = round(float(v), digits)
         if unit in IMPERIAL and mm > 0:  # feet and inches; a negative stays a decimal
-            feet, inch = divmod(Fraction(mm) / MM_PER["in"], 12)
-            if round(float(inch), digits) >= 12:
-                continue
-            text = f"{round(float(inch), digits):.{digits}f}".rstrip("0").rstrip(".")
-            out = f"{int(feet)} ft {text} in" if feet else f"{text} in"
+            feet, inch = divmod(round(float(Fraction(mm) / MM_PER["in"]), digits), 12)
+            text = f"{inch:.{digits}f}".rstrip("0").rstrip(".")
+            out = (f"{int(feet)} ft" + (f" {text} in" if text != "0" else "")) if feet else f"{text} in"
         if parse_length(out, unit) == mm:
             return out
     return float(v)
