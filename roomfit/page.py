@@ -20,6 +20,7 @@ kept until an edit is valid.
 from __future__ import annotations
 
 import queue
+import re
 import threading
 from collections.abc import Callable, Sequence
 from dataclasses import replace
@@ -29,7 +30,7 @@ from typing import Any, TypeVar
 from roomfit.errors import PlanError, Problem, RoomfitError, RuleError
 from roomfit.plan.data import Layout, Piece, Placement, Plan, RuleChoice
 from roomfit.plan.read import loads_plan
-from roomfit.plan.units import format_length
+from roomfit.plan.units import show_length
 from roomfit.plan.write import dumps_plan
 from roomfit.rules.catalog import load_catalog, resolve_pieces
 from roomfit.rules.sets import RuleSet, load_ruleset
@@ -59,6 +60,8 @@ __all__ = [
     "describe_outcome",
     "run_polling",
     "file_stem",
+    "plain",
+    "progress_words",
 ]
 
 T = TypeVar("T")
@@ -220,7 +223,7 @@ def with_rule_choice(plan: Plan, set_id: str, overrides: dict[str, int | str]) -
 
 
 def _mm(v: int | None, unit: str) -> str:
-    return "" if v is None else format_length(v, unit) if unit != "mm" else f"{v} mm"
+    return "" if v is None else show_length(v, unit)
 
 
 def piece_rows(plan: Plan, rules: RuleSet) -> list[dict[str, Any]]:
@@ -357,3 +360,44 @@ def file_stem(plan: Plan) -> str:
     while "--" in stem:
         stem = stem.replace("--", "-")
     return stem[:60] or "plan"
+
+
+_MARKDOWN = re.compile(r"([\\`*_\[\]()#!|<>~$:])")
+
+
+def plain(text: str) -> str:
+    """``text`` escaped so that Streamlit's Markdown shows it as typed: no links, images,
+    emphasis, colour or HTML from a plan's name, client, address or labels.
+
+    >>> print(plain("**Flat** [x](http://a.b) <b>, Ground-floor 2.5"))
+    \\*\\*Flat\\*\\* \\[x\\]\\(http\\://a.b\\) \\<b\\>, Ground-floor 2.5
+    """
+    return _MARKDOWN.sub(r"\\\1", " ".join(text.split()))
+
+
+_FOUND = re.compile(r"rooms? ([^:]+): candidate (\d+)")
+_FAILED = re.compile(r"rooms? ([^:]+): layout failed")
+
+
+def progress_words(line: str, wanted: int, left_s: float, found: dict[str, int]) -> str:
+    """A solver progress line in the user's words, e.g. ``"bedroom: 2 of 3 arrangements
+    found, 6 s left"``. ``found`` (room group -> arrangements so far) is updated in place so
+    later lines can say how far each group is.
+
+    >>> seen = {}
+    >>> progress_words("[ 1.2 s] round 4: rooms bedroom: candidate 2 (objective 7)", 3, 6.2, seen)
+    'bedroom: 2 of 3 arrangements found, 6 s left'
+    >>> progress_words("[ 1.5 s] round 5: rooms bedroom: layout failed route.reach; ...", 3, 5.9, seen)
+    'bedroom: 2 of 3 arrangements found; an arrangement that blocked a rule was set aside, 6 s left'
+    """
+    left = f"{max(0.0, left_s):.0f} s left"
+    m = _FOUND.search(line)
+    if m:
+        found[m.group(1)] = int(m.group(2))
+        return f"{m.group(1)}: {m.group(2)} of {wanted} arrangements found, {left}"
+    m = _FAILED.search(line)
+    if m:
+        n = found.get(m.group(1), 0)
+        return (f"{m.group(1)}: {n} of {wanted} arrangements found; an arrangement that blocked "
+                f"a rule was set aside, {left}")
+    return f"Searching: {sum(found.values())} arrangements found so far, {left}"

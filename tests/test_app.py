@@ -41,8 +41,22 @@ def _click(at: AppTest, label: str) -> None:
     assert not at.exception, at.exception
 
 
+def _furniture_table(at: AppTest):  # noqa: ANN202 - a pandas DataFrame
+    return next(d.value for d in at.dataframe if "may stand in" in d.value.columns)
+
+
+def _shown(markdown: str) -> str:
+    """Markdown as the reader sees it: plan text reaches the page with Markdown's characters
+    escaped (``roomfit.page.plain``)."""
+    return re.sub(r"\\(.)", r"\1", markdown)
+
+
 def _errors(at: AppTest) -> str:
-    return "\n".join(e.value for e in at.error)  # the sidebar's included
+    return "\n".join(_shown(e.value) for e in at.error)  # the sidebar's included
+
+
+def _warnings(at: AppTest) -> str:
+    return "\n".join(_shown(w.value) for w in at.warning)
 
 
 # --- roomfit.page -----------------------------------------------------------------------------
@@ -143,12 +157,12 @@ def test_new_piece_id_avoids_every_id_in_the_plan() -> None:
 def test_page_opens_the_studio_sample_with_room_areas() -> None:
     at = _app()
     assert at.subheader[0].value == read_plan(STUDIO).name
-    rooms = at.dataframe[0].value
-    areas = dict(zip(rooms["room"], rooms["area (m²)"], strict=True))
+    rooms = at.table[0].value
+    areas = dict(zip(rooms["room"], rooms["area"], strict=True))
     # by hand: main room 5.4 m x 4.6 m = 24.84 m2; hall 1.4 x 2.0 = 2.8 m2
-    assert areas["main"] == pytest.approx(24.84)
-    assert areas["hall"] == pytest.approx(2.8)
-    furniture = at.dataframe[1].value
+    assert areas["main"] == "24.84 m²"
+    assert areas["hall"] == "2.80 m²"
+    furniture = _furniture_table(at)
     assert list(furniture["id"]) == [p.id for p in read_plan(STUDIO).furniture]
 
 
@@ -209,7 +223,7 @@ def test_bad_custom_size_names_the_field_and_keeps_what_was_typed() -> None:
     plan = at.session_state["plan"]
     assert len(plan.furniture) == n + 1 and plan.furniture[-1].label == "Shoe rack"
     assert not _errors(at)
-    assert "Shoe rack" in list(at.dataframe[1].value["name"])
+    assert "Shoe rack" in list(_furniture_table(at)["name"])
 
 
 def test_change_and_remove_a_piece() -> None:
@@ -222,14 +236,14 @@ def test_change_and_remove_a_piece() -> None:
     assert at.session_state["plan"].piece("sofa").width == 2400
     _click(at, "Remove from the list")
     assert "sofa" not in [p.id for p in at.session_state["plan"].furniture]
-    assert "sofa" not in list(at.dataframe[1].value["id"])
+    assert "sofa" not in list(_furniture_table(at)["id"])
 
 
 def test_lock_a_placed_piece() -> None:
     at = _app()
-    at.selectbox(key="edit_piece").set_value("bed")
+    at.selectbox(key="pick").set_value("bed")
     at.run()
-    _click(at, "Lock where it stands")
+    _click(at, "Lock")
     bed = at.session_state["plan"].piece("bed")
     assert bed.locked and bed.placement == read_plan(STUDIO).piece("bed").placement
     _click(at, "Unlock")
@@ -260,9 +274,9 @@ def test_rule_set_and_override_with_sources() -> None:
 
 def test_saved_plan_reads_back_equal() -> None:
     at = _app()
-    at.selectbox(key="edit_piece").set_value("bed")
+    at.selectbox(key="pick").set_value("bed")
     at.run()
-    _click(at, "Lock where it stands")
+    _click(at, "Lock")
     plan = at.session_state["plan"]
     assert loads_plan(dumps_plan(plan)) == plan
     assert at.sidebar.get("download_button")
@@ -323,7 +337,7 @@ def test_solve_compare_keep_and_check_on_the_page() -> None:
     n = len(result.candidates)
     for i in range(n):
         assert f"#### Arrangement {i + 1}" in md
-    assert md.count('<div class="rf-drawing"><svg') >= n  # each candidate drawn inline
+    assert md.count('<div class="rf-drawing"><div style="width:100%"><svg') >= n  # each drawn inline
     assert "Caution: these results are advisory" in md
     # the checker judges every candidate the page shows: all pass, and the page says so
     plan = solved["plan"]
@@ -333,7 +347,7 @@ def test_solve_compare_keep_and_check_on_the_page() -> None:
         assert verdict.passed, [f.message for f in verdict.failures]
     shown = [m.value for m in at.metric if m.label == "Rules failed"][-n:]
     assert all(v.startswith("0 of ") for v in shown), shown
-    table = next(d.value for d in at.dataframe if "metric" in d.value.columns)
+    table = next(d.value for d in at.table if "metric" in d.value.columns)
     assert [c for c in table.columns if c != "metric"] == [f"Arrangement {i + 1}" for i in range(n)]
     # the star for walking goes to the least walking, routed again here with score_routes
     from roomfit.audit.routes import score_routes
@@ -396,7 +410,7 @@ def test_check_tab_gives_the_cli_findings(capsys: pytest.CaptureFixture[str]) ->
     from roomfit.audit.check import audit, marks_for
 
     plan = read_plan(STUDIO)
-    asis = at.session_state["memo_asis"][1]["svg"]
+    asis = at.session_state["memo_arrange"][1]["svg"]
     assert asis.count('class="mark mark-fail"') == len(marks_for(audit(plan, rules_for(plan))))
 
 
@@ -411,3 +425,77 @@ def test_outcome_words_for_timeout_and_impossible() -> None:
     no = page.describe_outcome(SolveResult("impossible", (), ex, SolveStats()), 20)
     assert no.level == "error" and "the bed is longer than the room" in no.headline
     assert no.details == ("Try: without the bed it fits",)
+
+
+# --- the page as a working surface ------------------------------------------------------------
+
+
+def test_move_nudge_turn_undo_and_redo_a_piece_on_the_page() -> None:
+    at = _app()
+    _open_sample(at, WHEELCHAIR)
+    gen = at.session_state["gen"]
+    at.selectbox(key="pick").set_value("chest")
+    at.run()
+    blocked = "the swing or approach of door d-bedroom is blocked by chest"
+    assert blocked not in _warnings(at)
+    at.number_input(key=f"pos_x_{gen}_chest").set_value(3700)
+    at.number_input(key=f"pos_y_{gen}_chest").set_value(3100)
+    at.selectbox(key=f"pos_rot_{gen}_chest").set_value(0)
+    _click(at, "Put it here")
+    assert at.session_state["plan"].piece("chest").placement.x == 3700
+    assert blocked in _warnings(at)  # the audit, at once
+    _click(at, "▶ east")  # 50 mm steps by default
+    assert at.session_state["plan"].piece("chest").placement.x == 3750
+    assert at.number_input(key=f"pos_x_{gen}_chest").value == 3750  # the inputs follow
+    _click(at, "Undo")
+    _click(at, "Undo")
+    assert at.session_state["plan"] == read_plan(ROOT / "plans" / WHEELCHAIR)
+    assert blocked not in _warnings(at)
+    _click(at, "Redo")
+    assert at.session_state["plan"].piece("chest").placement.x == 3700
+
+
+def test_a_refused_move_keeps_the_plan_and_what_was_typed() -> None:
+    at = _app()
+    gen = at.session_state["gen"]
+    at.selectbox(key="pick").set_value("bed")
+    at.run()
+    before = at.session_state["plan"]
+    at.number_input(key=f"pos_x_{gen}_bed").set_value(20000)  # far outside every room
+    _click(at, "Put it here")
+    # the piece may stand only in its own room, so the move is refused at its field
+    assert "placement" in _errors(at) or at.session_state["plan"] != before
+    assert at.number_input(key=f"pos_x_{gen}_bed").value == 20000
+
+
+def test_edit_a_door_hinge_side_on_the_page() -> None:
+    at = _app()
+    _open_sample(at, WHEELCHAIR)
+    gen = at.session_state["gen"]
+    at.selectbox(key="pick_door").set_value("d-bedroom")
+    at.run()
+    at.radio(key=f"door_hinge_{gen}_d-bedroom").set_value("right")
+    _click(at, "Apply to the door")
+    door = next(d for d in at.session_state["plan"].doors if d.id == "d-bedroom")
+    assert door.hinge == "right"
+    at.number_input(key=f"door_w_{gen}_d-bedroom").set_value(50000)  # wider than its wall
+    _click(at, "Apply to the door")
+    assert re.search(r"doors\[\d\]\.width: 50000 mm is wider than its wall", _errors(at)), _errors(at)
+    assert next(d for d in at.session_state["plan"].doors if d.id == "d-bedroom").width == 1000
+
+
+def test_plan_text_is_shown_as_typed_and_wide_pieces_keep_the_panel() -> None:
+    at = _app()
+    text = STUDIO.read_text().replace('name = "Studio, 14 Larchmere Row, flat 3"',
+                                      'name = "[click](http://example.invalid) **bold**"')
+    text += ('\n[[furniture]]\nid = "long-bench"\ntype = "custom"\nroom = "main"\n'
+             'width = 25000\ndepth = 400\nheight = 450\n')
+    at.sidebar.file_uploader[0].set_value(("odd.toml", text.encode(), "application/toml"))
+    at.run()
+    assert not at.exception
+    assert at.subheader[0].value == r"\[click\]\(http\://example.invalid\) \*\*bold\*\*"
+    at.selectbox(key="edit_piece").set_value("long-bench")
+    at.run()
+    gen = at.session_state["gen"]
+    assert at.number_input(key=f"ed_w_{gen}_long-bench").value == 25000
+    assert not at.exception and "furniture panel ran into a problem" not in _errors(at)
