@@ -129,13 +129,13 @@ def _piece_controls(plan: Plan, pid: str) -> None:
              format_func=lambda v: f"{v} mm")
     left, up, down, right = st.columns(4)
     off = pl is None
-    left.button("◀ west", key="nudge_w", on_click=_nudge, args=(pid, -1, 0), disabled=off)
-    up.button("▲ north", key="nudge_n", on_click=_nudge, args=(pid, 0, 1), disabled=off)
-    down.button("▼ south", key="nudge_s", on_click=_nudge, args=(pid, 0, -1), disabled=off)
-    right.button("▶ east", key="nudge_e", on_click=_nudge, args=(pid, 1, 0), disabled=off)
+    left.button("◀", help="west", key="nudge_w", on_click=_nudge, args=(pid, -1, 0), disabled=off)
+    up.button("▲", help="north", key="nudge_n", on_click=_nudge, args=(pid, 0, 1), disabled=off)
+    down.button("▼", help="south", key="nudge_s", on_click=_nudge, args=(pid, 0, -1), disabled=off)
+    right.button("▶", help="east", key="nudge_e", on_click=_nudge, args=(pid, 1, 0), disabled=off)
     b1, b2, b3 = st.columns(3)
     b1.button("Turn 90°", key="turn", on_click=_turn, args=(pid,), disabled=off)
-    b2.button("Back to the wall", key="snap", on_click=_snap, args=(pid,), disabled=off)
+    b2.button("To the wall", key="snap", on_click=_snap, args=(pid,), disabled=off)
     b3.button("Unlock" if p.locked else "Lock", key="lock", on_click=_lock, args=(pid,), disabled=off)
 
 
@@ -160,7 +160,7 @@ def arrange(plan: Plan, rules: RuleSet) -> None:
     else:
         st.success(f"All {len(result.findings)} rule checks pass under {text(rules.label)}.")
     caution()
-    left, right = st.columns([3, 1])
+    left, right = st.columns([5, 2])
     with right:
         if ids:
             labels = {p.id: f"{p.label or p.id} ({p.id})" for p in plan.furniture}

@@ -134,6 +134,8 @@ def trace() -> None:
                 poly = plan_from_trace("x", [r], t["scale"], t["scan"].height).rooms[0]
                 st.caption(f"{text(r.label)}: {format_area(room_polygon(poly).area, 'mm')}")
         st.text_input("Plan name", key="trace_name")
-        st.selectbox("Rule set", ruleset_ids(), key="trace_rules")
+        ids = ruleset_ids()
+        st.selectbox("Rule set", ids, index=ids.index("everyday") if "everyday" in ids else 0,
+                     key="trace_rules")
         st.button("Open the traced rooms as the plan", key="make_plan", on_click=_make_plan,
                   disabled=not (t["rooms"] and t["scale"]), type="primary")

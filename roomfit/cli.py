@@ -241,7 +241,7 @@ def _cmd_solve(args: argparse.Namespace) -> int:
     print(f"searching {args.plan} under {rules.id}: up to {options.candidates} candidates, "
           f"{options.time_limit:g} s", file=sys.stderr)
     with signals_kept():  # CP-SAT's own SIGINT handler must not swallow an interrupt
-        result = solve(plan, rules, options, progress=lambda line: print(line, file=sys.stderr))
+        result = solve(plan, rules, options, progress=_progress_printer(options.candidates))
     st = result.stats
     print(f"{args.plan}: {result.status} ({st.elapsed:.1f} s, {st.solves} solver runs, "
           f"{st.audits} audits, {st.cuts} layouts cut by the audit)")
@@ -331,6 +331,26 @@ def _print_ideas(plan: Plan, rules: RuleSet, candidates: Sequence) -> None:
             print("  moving list from today's arrangement:" + ("" if todo else " nothing moves"))
             for line in todo:
                 print(f"    - {line}")
+
+
+def _progress_printer(wanted: int) -> Callable[[str], None]:
+    """Print the solver's progress in the user's words on stderr, each line once (the time
+    left is left out, so a line repeats only when something new happened)."""
+    import time
+
+    from roomfit.page import progress_words
+
+    start = time.monotonic()
+    seen: dict[str, int] = {}
+    printed: set[str] = set()
+
+    def say(line: str) -> None:
+        words = progress_words(line, wanted, None, seen)
+        if words not in printed:
+            printed.add(words)
+            print(f"[{time.monotonic() - start:5.1f} s] {words}", file=sys.stderr)
+
+    return say
 
 
 def _arrangements(args: argparse.Namespace) -> tuple[list[Plan], list[str], list[RuleSet]]:

@@ -379,25 +379,25 @@ _FOUND = re.compile(r"rooms? ([^:]+): candidate (\d+)")
 _FAILED = re.compile(r"rooms? ([^:]+): layout failed")
 
 
-def progress_words(line: str, wanted: int, left_s: float, found: dict[str, int]) -> str:
+def progress_words(line: str, wanted: int, left_s: float | None, found: dict[str, int]) -> str:
     """A solver progress line in the user's words, e.g. ``"bedroom: 2 of 3 arrangements
     found, 6 s left"``. ``found`` (room group -> arrangements so far) is updated in place so
-    later lines can say how far each group is.
+    later lines can say how far each group is; ``left_s`` None leaves out the time left.
 
     >>> seen = {}
     >>> progress_words("[ 1.2 s] round 4: rooms bedroom: candidate 2 (objective 7)", 3, 6.2, seen)
     'bedroom: 2 of 3 arrangements found, 6 s left'
     >>> progress_words("[ 1.5 s] round 5: rooms bedroom: layout failed route.reach; ...", 3, 5.9, seen)
-    'bedroom: 2 of 3 arrangements found; an arrangement that blocked a rule was set aside, 6 s left'
+    'bedroom: 2 of 3 arrangements found; one that broke a rule was set aside, 6 s left'
     """
-    left = f"{max(0.0, left_s):.0f} s left"
+    left = "" if left_s is None else f", {max(0.0, left_s):.0f} s left"
     m = _FOUND.search(line)
     if m:
         found[m.group(1)] = int(m.group(2))
-        return f"{m.group(1)}: {m.group(2)} of {wanted} arrangements found, {left}"
+        return f"{m.group(1)}: {m.group(2)} of {wanted} arrangements found{left}"
     m = _FAILED.search(line)
     if m:
         n = found.get(m.group(1), 0)
-        return (f"{m.group(1)}: {n} of {wanted} arrangements found; an arrangement that blocked "
-                f"a rule was set aside, {left}")
-    return f"Searching: {sum(found.values())} arrangements found so far, {left}"
+        return (f"{m.group(1)}: {n} of {wanted} arrangements found; one that broke a rule "
+                f"was set aside{left}")
+    return f"Searching: {sum(found.values())} arrangements found so far{left}"

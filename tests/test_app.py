@@ -444,7 +444,7 @@ def test_move_nudge_turn_undo_and_redo_a_piece_on_the_page() -> None:
     _click(at, "Put it here")
     assert at.session_state["plan"].piece("chest").placement.x == 3700
     assert blocked in _warnings(at)  # the audit, at once
-    _click(at, "▶ east")  # 50 mm steps by default
+    _click(at, "▶")  # 50 mm steps by default
     assert at.session_state["plan"].piece("chest").placement.x == 3750
     assert at.number_input(key=f"pos_x_{gen}_chest").value == 3750  # the inputs follow
     _click(at, "Undo")

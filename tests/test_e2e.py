@@ -9,6 +9,7 @@ is bounded and the server is always stopped.
 from __future__ import annotations
 
 import os
+import re
 import shutil
 import socket
 import subprocess
@@ -142,5 +143,153 @@ def test_solve_a_sample_in_a_real_browser(server: str, tmp_path: Path) -> None:
             shot = tmp_path / "candidates.png"
             tab.screenshot(path=str(shot), full_page=True)
             assert shot.stat().st_size > 10_000
+        finally:
+            browser.close()
+
+
+def _scan_image(path: Path) -> None:
+    """A generated plan scan at 10 mm a pixel: a 4.0 x 5.0 m living room beside a 2.0 x 5.0 m
+    bedroom, walls drawn 6 px thick, with a dimension line under the plan."""
+    from PIL import Image, ImageDraw
+
+    img = Image.new("RGB", (1000, 700), "white")
+    d = ImageDraw.Draw(img)
+    d.rectangle((100, 100, 700, 600), outline="black", width=6)
+    d.line((500, 100, 500, 600), fill="black", width=6)
+    d.line((100, 650, 700, 650), fill="black", width=2)
+    d.text((380, 655), "6000", fill="black")
+    img.save(path)
+
+
+def _pick(tab: object, label: str, option: str) -> None:
+    """Choose the option containing ``option`` in the select box labelled ``label`` in the
+    tab shown."""
+    panel = tab.locator('[role="tabpanel"]:visible')  # type: ignore[attr-defined]
+    box = panel.get_by_test_id("stSelectbox").filter(
+        has=tab.get_by_text(label, exact=True))  # type: ignore[attr-defined]
+    box.first.click()
+    tab.get_by_role("option", name=option).first.click()  # type: ignore[attr-defined]
+    _settle(tab)
+
+
+def test_work_on_the_page_in_a_real_browser(server: str, tmp_path: Path) -> None:
+    """Move a piece and see a finding come and go, flip a door's hinge, trace two rooms over
+    a generated scan with a known scale: screenshots of each step in ``ROOMFIT_E2E_SHOTS``
+    (default: the test's temporary folder)."""
+    _need(CHROMIUM.exists() or shutil.which("chromium") is not None,
+          "Debian's chromium is not installed (/usr/bin/chromium)")
+    try:
+        from playwright.sync_api import expect, sync_playwright
+    except ImportError:
+        _need(False, "the playwright package is not installed (pip install -e '.[e2e]')")
+    shots = Path(os.environ.get("ROOMFIT_E2E_SHOTS", tmp_path))
+    shots.mkdir(parents=True, exist_ok=True)
+    blocked = "the swing or approach of door d-bedroom is blocked by chest"
+
+    with sync_playwright() as pw:
+        browser = pw.chromium.launch(executable_path=str(CHROMIUM if CHROMIUM.exists()
+                                                         else shutil.which("chromium")),
+                                     args=CHROMIUM_ARGS, timeout=60_000)
+        try:
+            tab = browser.new_page(viewport={"width": 1600, "height": 1400})
+            tab.set_default_timeout(60_000)
+            expect.set_options(timeout=60_000)
+            tab.goto(server, wait_until="domcontentloaded")
+            expect(tab.get_by_text("roomfit · furnish with the client")).to_be_visible()
+            _settle(tab)
+            sidebar = tab.get_by_test_id("stSidebar")
+            sidebar.get_by_test_id("stSelectbox").click()
+            tab.get_by_role("option", name=SAMPLE).click()
+            sidebar.get_by_role("button", name="Open this sample").click()
+            _settle(tab)
+
+            # 1. move the chest (turned 270 degrees, 450 x 800 mm) into the bedroom door's swing:
+            # the finding appears at once
+            tab.get_by_role("tab", name="Arrange and check").click()
+            _settle(tab)
+            tab.screenshot(path=str(shots / "0-arrange.png"), full_page=True)
+            _pick(tab, "Piece", "(chest)")
+            time.sleep(1)  # the page runs once more as the picked piece's inputs are set
+            _settle(tab)
+            expect(tab.get_by_label("x (mm, lower-left corner)")).to_have_count(1)
+            tab.get_by_label("x (mm, lower-left corner)").fill("3700")
+            tab.get_by_label("y (mm)").fill("3100")
+            tab.get_by_label("y (mm)").press("Tab")
+            tab.get_by_role("button", name="Put it here").click()
+            _settle(tab)
+            tab.screenshot(path=str(shots / "1-finding-appears.png"), full_page=True)
+            expect(tab.get_by_text(blocked).first).to_be_visible()
+            tab.screenshot(path=str(shots / "1-finding-appears.png"), full_page=True)
+
+            # 2. undo: the finding is gone
+            tab.get_by_role("button", name="Undo").click()
+            _settle(tab)
+            expect(tab.get_by_text(blocked)).to_have_count(0)
+            tab.screenshot(path=str(shots / "2-finding-gone.png"), full_page=True)
+
+            # 3. the bedroom door's hinge to the other side
+            tab.get_by_role("tab", name="Building").click()
+            _settle(tab)
+            _pick(tab, "Door", "d-bedroom")
+            tab.get_by_role("tabpanel", name="Building").get_by_text("right", exact=True).click()
+            tab.get_by_role("button", name="Apply to the door").click()
+            _settle(tab)
+            expect(tab.get_by_text("Door d-bedroom changed.")).to_be_visible()
+            tab.screenshot(path=str(shots / "3-door-hinge.png"), full_page=True)
+
+            # 4. trace two rooms over a generated scan, 6000 mm known between two clicks
+            scan = tmp_path / "scan.png"
+            _scan_image(scan)
+            tab.get_by_role("tab", name="Trace a scan").click()
+            _settle(tab)
+            panel = tab.get_by_role("tabpanel", name="Trace a scan")
+            panel.locator('input[type="file"]').set_input_files(str(scan))
+            _settle(tab)
+            image = panel.frame_locator("iframe").first.locator("img")
+            expect(image).to_be_visible()
+
+            def click(x: int, y: int) -> None:
+                image.click(position={"x": x, "y": y})
+                _settle(tab)
+                time.sleep(0.3)
+                _settle(tab)
+
+            click(100, 600)
+            click(700, 600)
+            panel.get_by_label("Known length (mm)").fill("6000")
+            panel.get_by_role("button", name="Use this scale").click()
+            _settle(tab)
+            expect(panel.get_by_text("Scale: 10.00 mm per pixel")).to_be_visible()
+            panel.get_by_text("the corners of the room being traced").click()
+            _settle(tab)
+            for name, corners in (("Living", [(100, 100), (500, 100), (500, 600), (100, 600)]),
+                                  ("Bedroom", [(500, 100), (700, 100), (700, 600), (500, 600)])):
+                panel.get_by_label("Room name").fill(name)
+                panel.get_by_label("Room name").press("Enter")
+                _settle(tab)
+                for x, y in corners:
+                    click(x, y)
+                expect(panel.get_by_text("4 corners clicked")).to_be_visible()
+                panel.get_by_role("button", name="Close this room").click()
+                _settle(tab)
+            tab.screenshot(path=str(shots / "4-traced.png"), full_page=True)
+            panel.get_by_label("Plan name").fill("Traced flat")
+            panel.get_by_label("Plan name").press("Enter")
+            _settle(tab)
+            panel.get_by_role("button", name="Open the traced rooms as the plan").click()
+            _settle(tab)
+            tab.screenshot(path=str(shots / "4b-opened.png"), full_page=True)
+            expect(tab.get_by_text("Opened trace over scan.png")).to_be_visible()
+            tab.get_by_role("tab", name="The apartment").click()
+            _settle(tab)
+            table = tab.get_by_role("tabpanel", name="The apartment").get_by_test_id("stTable")
+            rows = table.locator("tbody tr").all_inner_texts()
+            areas = {name: float(m.group(1)) for r in rows for name in ("Living", "Bedroom")
+                     if name in r and (m := re.search(r"([\d.]+) m²", r))}
+            # 4.0 x 5.0 m and 2.0 x 5.0 m on the scan: within 1 %
+            assert areas["Living"] == pytest.approx(20.0, rel=0.01), rows
+            assert areas["Bedroom"] == pytest.approx(10.0, rel=0.01), rows
+            tab.screenshot(path=str(shots / "5-traced-plan.png"), full_page=True)
+            assert tab.get_by_test_id("stException").count() == 0
         finally:
             browser.close()
