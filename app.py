@@ -19,7 +19,7 @@ from typing import Any
 
 import streamlit as st
 
-from app_common import caution, edit, key, messages, panel, set_plan, show_svg, state, text
+from app_common import caution, edit, kept, key, messages, panel, set_plan, show_svg, state, text
 from app_edit import arrange, building, undo_bar
 from app_ifc import ifc_review, ifc_sidebar
 from app_trace import trace
@@ -220,7 +220,7 @@ def _overview(plan: Plan, rules: RuleSet) -> None:
                    "area": format_area(room_polygon(r).area, plan.unit)} for r in plan.rooms])
         st.caption("Furniture is drawn where the plan puts it; the Furniture tab lists it.")
     with left:
-        show_svg(_memo("overview", plan, lambda: draw.draw_svg(plan, rules, title=plan.name,
+        show_svg(kept("overview", plan, lambda: draw.draw_svg(plan, rules, title=plan.name,
                                                                 show=("dimensions",))))
 
 
@@ -315,17 +315,6 @@ def _rules(plan: Plan, rules: RuleSet) -> None:
             for r in rules.overridden))
         st.button("Back to the set's own values", key="clear_overrides", on_click=_clear_overrides)
     st.dataframe(page.rule_rows(rules), hide_index=True)
-
-
-def _memo(name: str, same: Any, compute: Any) -> Any:
-    """``compute()`` kept in the session while ``same`` (a plan, say) stays the same, so that
-    redrawing the page after a click does not audit and draw everything again."""
-    s = state()
-    held = s.get(f"memo_{name}")
-    if held is None or held[0] != same:
-        held = (same, compute())
-        s[f"memo_{name}"] = held
-    return held[1]
 
 
 def _present(row: Any, index: int) -> dict[str, Any]:

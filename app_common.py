@@ -21,7 +21,8 @@ from roomfit.errors import RoomfitError
 from roomfit.page_edit import History, record
 from roomfit.plan.data import Plan
 
-__all__ = ["state", "set_plan", "key", "edit", "messages", "panel", "caution", "show_svg", "text"]
+__all__ = ["state", "set_plan", "key", "edit", "kept", "messages", "panel", "caution", "show_svg",
+           "text"]
 
 LOG = logging.getLogger("roomfit.app")
 
@@ -77,6 +78,17 @@ def edit(func: Any, *args: Any, where: str, notice: str, **kwargs: Any) -> bool:
     s["edit_error"] = None
     s["notice"] = (where, notice)
     return True
+
+
+def kept(name: str, same: Any, compute: Any) -> Any:
+    """``compute()`` kept in the session while ``same`` (a plan, say) stays the same, so that
+    redrawing the page after a click does not audit and draw everything again."""
+    s = state()
+    held = s.get(f"memo_{name}")
+    if held is None or held[0] != same:
+        held = (same, compute())
+        s[f"memo_{name}"] = held
+    return held[1]
 
 
 def messages(where: str) -> None:

@@ -12,7 +12,7 @@ from typing import Any
 
 import streamlit as st
 
-from app_common import caution, edit, key, messages, show_svg, state, text
+from app_common import caution, edit, kept, key, messages, show_svg, state, text
 from roomfit import page, page_edit
 from roomfit.audit.check import audit, marks_for
 from roomfit.audit.geometry import room_polygon
@@ -93,20 +93,11 @@ def undo_bar() -> None:
 # --------------------------------------------------------------------------------- arrange
 
 
-def _checked(plan: Plan, rules: RuleSet, show: tuple[str, ...], pick: str | None) -> dict[str, Any]:
-    """Audit (the quick form) and draw the plan; kept while the plan and layers stay."""
-    s = state()
-    memo = (plan, rules, show, pick)
-    held = s.get("memo_arrange")
-    if held is None or held[0] != memo:
-        result = audit(plan, rules, widths=False)
-        routes = score_routes(plan, rules) if "routes" in show and plan.layout else None
-        marks = marks_for(result)
-        svg = draw_svg(plan, rules, marks=marks, findings=result.findings, routes=routes,
-                       show=show, title=plan.name, width_px=1100)
-        held = (memo, {"audit": result, "svg": svg})
-        s["memo_arrange"] = held
-    return held[1]
+def _drawing(plan: Plan, rules: RuleSet, show: tuple[str, ...], result: Any) -> str:
+    """The arranged plan with the failures numbered and the chosen layers."""
+    routes = score_routes(plan, rules) if "routes" in show and plan.layout else None
+    return draw_svg(plan, rules, marks=marks_for(result), findings=result.findings, routes=routes,
+                    show=show, title=plan.name, width_px=1100)
 
 
 def _piece_controls(plan: Plan, pid: str) -> None:
@@ -149,8 +140,8 @@ def arrange(plan: Plan, rules: RuleSet) -> None:
     ids = [p.id for p in plan.furniture]
     if state().get("pick") not in ids:
         state()["pick"] = ids[0] if ids else None
-    held = _checked(plan, rules, show, None)
-    result = held["audit"]
+    # the quick audit first (a tenth of a second or so), shown before the drawing is made
+    result = kept("arrange_audit", (plan, rules), lambda: audit(plan, rules, widths=False))
     fails = result.failures
     if fails:
         st.warning(f"{len(fails)} of {len(result.findings)} rule checks fail under "
@@ -169,7 +160,8 @@ def arrange(plan: Plan, rules: RuleSet) -> None:
         else:
             st.caption("The furniture list is empty.")
     with left:
-        show_svg(held["svg"], zoom)
+        show_svg(kept("arrange", (plan, rules, show),
+                       lambda: _drawing(plan, rules, show, result)), zoom)
     with st.expander("Every rule finding"):
         st.dataframe(page.findings_rows(result.findings), hide_index=True, width="stretch")
 
@@ -261,4 +253,5 @@ def building(plan: Plan, rules: RuleSet) -> None:
         st.button("Apply the corners", key="apply_corners", on_click=_corners, args=(rid,))
         st.caption(f"Floor area {format_area(room_polygon(room).area, plan.unit)}, "
                    f"{len(room.outline)} corners.")
-    show_svg(draw_svg(plan, rules, show=("zones", "dimensions"), title=plan.name, width_px=1100))
+    show_svg(kept("building", (plan, rules), lambda: draw_svg(
+        plan, rules, show=("zones", "dimensions"), title=plan.name, width_px=1100)))

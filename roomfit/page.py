@@ -30,7 +30,7 @@ from typing import Any, TypeVar
 from roomfit.errors import PlanError, Problem, RoomfitError, RuleError
 from roomfit.plan.data import Layout, Piece, Placement, Plan, RuleChoice
 from roomfit.plan.read import loads_plan
-from roomfit.plan.units import show_length
+from roomfit.plan.units import IMPERIAL, show_length
 from roomfit.plan.write import dumps_plan
 from roomfit.rules.catalog import load_catalog, resolve_pieces
 from roomfit.rules.sets import RuleSet, load_ruleset
@@ -222,27 +222,33 @@ def with_rule_choice(plan: Plan, set_id: str, overrides: dict[str, int | str]) -
     return validated(plan.with_rules(choice))
 
 
-def _mm(v: int | None, unit: str) -> str:
-    return "" if v is None else show_length(v, unit)
-
-
 def piece_rows(plan: Plan, rules: RuleSet) -> list[dict[str, Any]]:
-    """One row per piece for the furniture table: sizes as resolved (catalogue or custom)."""
+    """One row per piece for the furniture table: sizes as resolved (catalogue or custom);
+    plans measured in feet or inches get the size and place in feet and inches too."""
     specs = {s.id: s for s in resolve_pieces(plan, rules)}
+    imperial = plan.unit in IMPERIAL
     rows = []
     for p in plan.furniture:
         s = specs[p.id]
         pl = p.placement
-        rows.append({
+        row: dict[str, Any] = {
             "id": p.id,
             "name": s.label,
             "type": p.type,
             "size (w x d x h, mm)": f"{s.width} x {s.depth} x {s.height}",
+        }
+        if imperial:
+            row["size"] = " x ".join(show_length(v, plan.unit) for v in (s.width, s.depth, s.height))
+        where = "" if pl is None else (
+            f"({show_length(pl.x, plan.unit)}, {show_length(pl.y, plan.unit)})" if imperial
+            else f"({pl.x}, {pl.y})")
+        row.update({
             "own size": any(v is not None for v in (p.width, p.depth, p.height)),
             "may stand in": ", ".join(p.rooms),
-            "placed": "" if pl is None else f"{pl.room} at ({pl.x}, {pl.y}), {pl.rotation} deg",
+            "placed": "" if pl is None else f"{pl.room} at {where}, {pl.rotation} deg",
             "locked": p.locked,
         })
+        rows.append(row)
     return rows
 
 

@@ -410,7 +410,7 @@ def test_check_tab_gives_the_cli_findings(capsys: pytest.CaptureFixture[str]) ->
     from roomfit.audit.check import audit, marks_for
 
     plan = read_plan(STUDIO)
-    asis = at.session_state["memo_arrange"][1]["svg"]
+    asis = at.session_state["memo_arrange"][1]
     assert asis.count('class="mark mark-fail"') == len(marks_for(audit(plan, rules_for(plan))))
 
 

@@ -76,6 +76,7 @@ def _draw_furniture(c: Canvas, plan: Plan, rules: RuleSet,
         taken.setdefault(pl.room, []).append(box(x0, y0, x1, y1))
         dx, dy = side_direction("front", pl.rotation)
         # the front edge, its middle third drawn heavy
+        front: list[tuple[float, float]]
         if dy:
             fy = y1 if dy > 0 else y0
             third = (x1 - x0) / 3
