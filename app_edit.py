@@ -65,6 +65,19 @@ def _snap(pid: str) -> None:
         _sync_position(pid)
 
 
+def _pick_on_sketch() -> None:
+    """A click on the plan's sketch picks the piece under it (before the list is drawn)."""
+    s = state()
+    value, drawn = s.get("pick_click"), s.get("pick_sketch")
+    if not value or drawn is None:
+        return
+    k = drawn.image.width / value.get("width", drawn.image.width)
+    x, y = drawn.to_plan(value["x"] * k, value["y"] * k)
+    pid = page_edit.piece_at(s["plan"], x, y)
+    if pid is not None:
+        s["pick"] = pid
+
+
 def _lock(pid: str) -> None:
     piece = state()["plan"].piece(pid)
     edit(page.lock_piece, pid, not piece.locked, where="arrange",
@@ -156,6 +169,13 @@ def arrange(plan: Plan, rules: RuleSet) -> None:
         if ids:
             labels = {p.id: f"{p.label or p.id} ({p.id})" for p in plan.furniture}
             pid = st.selectbox("Piece", ids, key="pick", format_func=labels.get)
+            with st.expander("…or click it on a sketch of the plan"):
+                from streamlit_image_coordinates import streamlit_image_coordinates
+
+                drawn = page_edit.sketch(plan, 640, pid)
+                state()["pick_sketch"] = drawn
+                streamlit_image_coordinates(drawn.image, key="pick_click", width="stretch",
+                                            on_click=_pick_on_sketch, cursor="pointer")
             _piece_controls(plan, pid)
         else:
             st.caption("The furniture list is empty.")

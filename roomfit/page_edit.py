@@ -17,6 +17,7 @@ so a bad value raises :class:`~roomfit.errors.PlanError` with the field path it 
 from __future__ import annotations
 
 from dataclasses import dataclass, replace
+from typing import Any
 
 from shapely import Point, Polygon
 
@@ -40,6 +41,9 @@ __all__ = [
     "edit_door",
     "edit_window",
     "set_outline",
+    "piece_at",
+    "Sketch",
+    "sketch",
 ]
 
 #: How many earlier plans undo keeps (common practice for an editing session).
@@ -235,3 +239,67 @@ def set_outline(plan: Plan, room_id: str, corners: list[tuple[int, int]]) -> Pla
     outline = tuple((int(x), int(y)) for x, y in corners)
     rooms = tuple(replace(r, outline=outline) if r.id == room_id else r for r in plan.rooms)
     return validated(replace(plan, rooms=rooms))
+
+
+def piece_at(plan: Plan, x: float, y: float) -> str | None:
+    """The id of the placed piece whose footprint holds the point (x, y) mm; where pieces
+    overlap (a rug under a table), the smallest one."""
+    best: tuple[float, str] | None = None
+    for spec in resolve_pieces(plan, rules_for(plan)):
+        pl = plan.piece(spec.id).placement
+        if pl is None:
+            continue
+        x0, y0, x1, y1 = footprint_box(spec, pl)
+        if x0 <= x <= x1 and y0 <= y <= y1:
+            area = (x1 - x0) * (y1 - y0)
+            if best is None or area < best[0]:
+                best = (area, spec.id)
+    return best[1] if best else None
+
+
+@dataclass(frozen=True)
+class Sketch:
+    """A plain picture of the plan to click on: ``scale`` mm per pixel, ``minx``/``maxy`` the
+    plan point at the picture's top-left corner."""
+
+    image: Any
+    scale: float
+    minx: float
+    maxy: float
+
+    def to_plan(self, px: float, py: float) -> tuple[float, float]:
+        """A picture pixel as plan millimetres (y flipped)."""
+        return self.minx + px * self.scale, self.maxy - py * self.scale
+
+
+def sketch(plan: Plan, width_px: int = 640, picked: str | None = None) -> Sketch:
+    """Rooms and placed pieces as a small picture (PIL image), the picked piece filled dark,
+    for choosing a piece by clicking it."""
+    from PIL import Image, ImageDraw
+
+    xs = [x for r in plan.rooms for x, _ in r.outline]
+    ys = [y for r in plan.rooms for _, y in r.outline]
+    pad = 200
+    minx, maxx, miny, maxy = min(xs) - pad, max(xs) + pad, min(ys) - pad, max(ys) + pad
+    scale = (maxx - minx) / width_px
+    out = Sketch(Image.new("RGB", (width_px, max(1, round((maxy - miny) / scale))), "white"),
+                 scale, minx, maxy)
+
+    def px(x: float, y: float) -> tuple[float, float]:
+        return (x - minx) / scale, (maxy - y) / scale
+
+    draw = ImageDraw.Draw(out.image)
+    for r in plan.rooms:
+        draw.polygon([px(x, y) for x, y in r.outline], fill=(244, 242, 236), outline=(59, 62, 70),
+                     width=2)
+    for spec in resolve_pieces(plan, rules_for(plan)):
+        pl = plan.piece(spec.id).placement
+        if pl is None:
+            continue
+        x0, y0, x1, y1 = footprint_box(spec, pl)
+        (a, b), (c, d) = px(x0, y1), px(x1, y0)
+        dark = spec.id == picked
+        draw.rectangle((a, b, c, d), fill=(134, 102, 58) if dark else (234, 216, 186),
+                       outline=(134, 102, 58), width=2)
+        draw.text((a + 3, b + 2), spec.id, fill="white" if dark else (42, 44, 49))
+    return out

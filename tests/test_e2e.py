@@ -208,7 +208,19 @@ def test_work_on_the_page_in_a_real_browser(server: str, tmp_path: Path) -> None
             tab.get_by_role("tab", name="Arrange and check").click()
             _settle(tab)
             tab.screenshot(path=str(shots / "0-arrange.png"), full_page=True)
-            _pick(tab, "Piece", "(chest)")
+            # pick the chest by clicking it on the sketch of the plan: rooms span x -200..10400 mm
+            # and y up to 7800 mm with the sketch's 200 mm margin; the chest is at
+            # (0..450, 3200..4000) mm, its middle (225, 3600)
+            panel = tab.locator('[role="tabpanel"]:visible')
+            panel.get_by_text("…or click it on a sketch of the plan").click()
+            _settle(tab)
+            sketch = panel.frame_locator("iframe").first.locator("img")
+            expect(sketch).to_be_visible()
+            width = sketch.bounding_box()["width"]
+            per_px = 10600 / width
+            sketch.click(position={"x": (225 + 200) / per_px, "y": (7800 - 3600) / per_px})
+            _settle(tab)
+            expect(panel.get_by_text("Chest of drawers (chest)").first).to_be_visible()
             time.sleep(1)  # the page runs once more as the picked piece's inputs are set
             _settle(tab)
             expect(tab.get_by_label("x (mm, lower-left corner)")).to_have_count(1)

@@ -146,3 +146,17 @@ def test_trace_two_rooms_over_a_scan_gives_their_areas() -> None:
         load_scan("scan.txt", b"hello")
     with pytest.raises(PlanError, match=r"rooms\[0\]\.outline"):
         plan_from_trace("x", [TracedRoom("A", "living", ((0, 0), (1, 1)))], 10, 100)
+
+
+def test_a_click_on_the_sketch_picks_the_piece_under_it() -> None:
+    plan = read_plan(STUDIO)
+    drawn = pe.sketch(plan, 540)
+    # the bed's footprint (610..2310, 2000..4100 mm): its middle, as a pixel, maps back to it
+    x0, y0, x1, y1 = _box(plan, "bed")
+    cx, cy = (x0 + x1) / 2, (y0 + y1) / 2
+    px, py = (cx - drawn.minx) / drawn.scale, (drawn.maxy - cy) / drawn.scale
+    back = drawn.to_plan(px, py)
+    assert back == pytest.approx((cx, cy))
+    assert pe.piece_at(plan, *back) == "bed"
+    assert drawn.image.getpixel((round(px), round(py))) == (234, 216, 186)  # drawn as a piece
+    assert pe.piece_at(plan, -5000, -5000) is None
