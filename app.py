@@ -238,7 +238,7 @@ def _furniture(plan: Plan, rules: RuleSet) -> None:
         d = cat.get(t)
         with st.form(key("add_form", t), border=True):
             st.text_input("Name (optional)", key=key("add_label", t))
-            st.multiselect("May stand in", rooms, default=rooms[:1], format_func=labels.get,
+            st.multiselect("May stand in", rooms, default=rooms[:1], format_func=lambda r: labels[r],
                            key=key("add_rooms", t))
             c1, c2, c3 = st.columns(3)
             c1.number_input("Width mm", 0, None, d.width if d else 0, step=10, key=key("add_w", t))
@@ -268,7 +268,7 @@ def _furniture(plan: Plan, rules: RuleSet) -> None:
                 st.text_input("Name", value=p.label, placeholder=spec.label,
                               key=key("ed_label", pid))
                 st.multiselect("May stand in", rooms, default=list(p.rooms),
-                               format_func=labels.get, key=key("ed_rooms", pid))
+                               format_func=lambda r: labels[r], key=key("ed_rooms", pid))
                 c1, c2, c3 = st.columns(3)
                 c1.number_input("Width mm", 0, None, spec.width, step=10, key=key("ed_w", pid))
                 c2.number_input("Depth mm", 0, None, spec.depth, step=10, key=key("ed_d", pid))

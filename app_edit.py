@@ -168,7 +168,7 @@ def arrange(plan: Plan, rules: RuleSet) -> None:
     with right:
         if ids:
             labels = {p.id: f"{p.label or p.id} ({p.id})" for p in plan.furniture}
-            pid = st.selectbox("Piece", ids, key="pick", format_func=labels.get)
+            pid = st.selectbox("Piece", ids, key="pick", format_func=lambda i: labels[i])
             with st.expander("…or click it on a sketch of the plan"):
                 from streamlit_image_coordinates import streamlit_image_coordinates
 
@@ -176,7 +176,8 @@ def arrange(plan: Plan, rules: RuleSet) -> None:
                 state()["pick_sketch"] = drawn
                 streamlit_image_coordinates(drawn.image, key="pick_click", width="stretch",
                                             on_click=_pick_on_sketch, cursor="pointer")
-            _piece_controls(plan, pid)
+            if pid is not None:
+                _piece_controls(plan, pid)
         else:
             st.caption("The furniture list is empty.")
     with left:

@@ -37,8 +37,9 @@ def ifc_sidebar() -> None:
                 s["ifc_summary"] = page_ifc.summary_from_upload(up.name, up.getvalue())
                 s["ifc_summary_id"] = up.file_id
             choices = page_ifc.storey_choices(s["ifc_summary"])
-            storey = st.selectbox("Storey", [c[0] for c in choices], key="ifc_storey",
-                                  format_func=dict(choices).get)
+            names = dict(choices)
+            storey = st.selectbox("Storey", list(names), key="ifc_storey",
+                                  format_func=lambda c: names[c])
             spaces = st.text_input("Only spaces matching (e.g. 2.*; empty: all)", key="ifc_spaces")
             if st.button("Import this storey", key="ifc_go"):
                 imported = page_ifc.import_from_upload(up.name, up.getvalue(), storey, spaces)

@@ -16,6 +16,7 @@ from collections.abc import Callable, Sequence
 from typing import TYPE_CHECKING
 
 from roomfit.caution import CAUTION
+from roomfit.cli_args import build_parser, tool_version
 from roomfit.errors import Problem, RoomfitError
 from roomfit.interrupts import Interrupted, interrupts_raised
 from roomfit.plan.data import Plan
@@ -24,9 +25,11 @@ from roomfit.rules.catalog import load_catalog, type_record
 from roomfit.rules.sets import RuleSet, choose_rules, load_ruleset, rule_record, rules_for, ruleset_ids
 
 if TYPE_CHECKING:
+    from roomfit.audit.findings import Finding
+    from roomfit.audit.routes import RouteScores
     from roomfit.files import RunFolder
 
-__all__ = ["main", "build_parser"]
+__all__ = ["COMMANDS", "main"]
 
 
 EXIT_OK, EXIT_FAIL, EXIT_BAD_INPUT, EXIT_TIMEOUT = 0, 1, 2, 3
@@ -79,13 +82,14 @@ def _cmd_catalog(args: argparse.Namespace) -> int:
         print(json.dumps({"rules": rules.id if rules else None, "types": records,
                           "caution": CAUTION}, indent=2, ensure_ascii=False))
         return EXIT_OK
-    rows = []
+    rows: list[list[str]] = []
     for r in records:
         zones = ", ".join(f"{z['side']} {z['kind']}" + (f" {z['depth']}" if "depth" in z else "")
                           for z in r["zones"])  # type: ignore[attr-defined]
-        rows.append([r["id"], r["label"], f"{r['width']} x {r['depth']}", str(r["height"]),
-                     "yes" if r["against_wall"] else "no", zones or "-",
-                     ", ".join(r["touch_sides"]) or "-", r["source"]])  # type: ignore[arg-type]
+        rows.append([str(r["id"]), str(r["label"]), f"{r['width']} x {r['depth']}",
+                     str(r["height"]), "yes" if r["against_wall"] else "no", zones or "-",
+                     ", ".join(r["touch_sides"]) or "-",  # type: ignore[arg-type]
+                     str(r["source"])])
     print(_aligned(["id", "label", "size mm", "height", "wall", "zones"
                     + (f" (depth mm, {rules.id})" if rules else ""), "may touch", "source"], rows))
     print(f"\n{len(rows)} types. Sizes are defaults: a plan may give a piece its own width, "
@@ -153,7 +157,8 @@ def _cmd_draw(args: argparse.Namespace) -> int:
         raise RoomfitError(Problem("--show", str(e))) from None
     refuse_input_overwrite(args.output, args.plan)
     plan, rules = _plan_and_rules(args)
-    findings, routes = (), None
+    findings: Sequence[Finding] = ()
+    routes: RouteScores | None = None
     if "turning" in show:  # the turning spaces drawn are the ones the audit finds
         from roomfit.audit.check import audit
 
@@ -228,6 +233,7 @@ def _cmd_solve(args: argparse.Namespace) -> int:
     from roomfit.interrupts import signals_kept
     from roomfit.plan.data import RuleChoice
     from roomfit.plan.write import dumps_plan
+    from roomfit.present.draw import draw_svg
     from roomfit.solve.outcome import describe
     from roomfit.solve.search import SolveOptions, solve
 
@@ -259,16 +265,11 @@ def _cmd_solve(args: argparse.Namespace) -> int:
     for c in result.candidates:
         furnished = chosen.with_layout(c.layout)
         files = [str(run.add(f"{stem}-{c.rank + 1}.toml", dumps_plan(furnished)))]
-        try:
-            from roomfit.present.draw import draw_svg
-        except ImportError:  # drawing not available: the plan files are still written
-            draw_svg = None
         verdict = c.audit if c.audit is not None else audit(furnished, rules)
         routes = c.routes if c.routes is not None else score_routes(furnished, rules)
-        if draw_svg is not None:  # with its routes, turning spaces and clearances
-            svg = draw_svg(furnished, rules, title=f"{plan.name}: candidate {c.rank + 1}",
-                           findings=verdict.findings, routes=routes)
-            files.append(str(run.add(f"{stem}-{c.rank + 1}.svg", svg)))
+        svg = draw_svg(furnished, rules, title=f"{plan.name}: candidate {c.rank + 1}",
+                       findings=verdict.findings, routes=routes)  # routes, turning, clearances
+        files.append(str(run.add(f"{stem}-{c.rank + 1}.svg", svg)))
         ok = sum(f.ok for f in verdict.findings)
         gap = "optimal" if c.optimal else f"gap {c.gap:.0%}"
         check = (f"pass {ok}/{len(verdict.findings)}" if verdict.passed else
@@ -306,7 +307,7 @@ def _finish_run(run: RunFolder, args: argparse.Namespace, rules: RuleSet, outcom
     with Path(args.plan).open("rb") as fh:
         digest = hashlib.sha256(fh.read(MAX_FILE_BYTES + 1)).hexdigest()
     folder = run.finish({
-        "tool": "roomfit", "version": _version(), "command": "solve", "plan": str(args.plan),
+        "tool": "roomfit", "version": tool_version(), "command": "solve", "plan": str(args.plan),
         "plan_sha256": digest, "rules": rules.id, "overrides": {r.id: r.value for r in rules.overridden},
         "seed": args.seed, "limits": {"time_limit_s": args.time_limit, "candidates":
                                       args.candidates, "grid_mm": args.grid},
@@ -428,145 +429,18 @@ def _cmd_import(args: argparse.Namespace) -> int:
     return EXIT_OK
 
 
-def _version() -> str:
-    from importlib.metadata import PackageNotFoundError, version
-
-    try:
-        return version("roomfit")
-    except PackageNotFoundError:  # run from a source tree that was never installed
-        return "(not installed)"
-
-
-#: Largest ``--seed``: CP-SAT's random seed is a signed 32-bit integer.
-SEED_MAX = 2**31 - 1
-
-#: Largest ``--grid`` in mm (a coarser grid would not fit a door in a room).
-GRID_MAX_MM = 1000
-
-
-def _within(low: int, high: int) -> Callable[[str], int]:
-    """An argument type: a whole number from ``low`` to ``high``, else a message naming them."""
-    def whole(text: str) -> int:
-        try:
-            value = int(text)
-        except ValueError:
-            raise argparse.ArgumentTypeError(f"expected a whole number, found {text!r}") from None
-        if not low <= value <= high:
-            raise argparse.ArgumentTypeError(f"{value} is outside {low} to {high}")
-        return value
-    return whole
-
-
-def _text_argument(text: str) -> str:
-    """An argument type for text drawn or printed (a title): no control characters."""
-    from roomfit.plan.limits import check_text
-
-    wrong = check_text(text)
-    if wrong is not None:
-        raise argparse.ArgumentTypeError(f"the text {wrong}")
-    return text
-
-
-def build_parser() -> argparse.ArgumentParser:
-    parser = argparse.ArgumentParser(
-        prog="roomfit",
-        description="Lay out furniture in real apartments under clearance, circulation and "
-                    "wheelchair-access rules.",
-        epilog=CAUTION,
-    )
-    parser.add_argument("--version", action="version", version=f"roomfit {_version()}")
-    sub = parser.add_subparsers(dest="command", required=True, metavar="COMMAND")
-    p = sub.add_parser("validate", help="read a plan file and report every problem in it")
-    p.add_argument("plan", help="plan file (.toml)")
-    p.set_defaults(func=_cmd_validate)
-    p = sub.add_parser("catalog", help="list the furniture types with sizes, zones and sources")
-    p.add_argument("--rules", metavar="SET", help="also show each zone's depth under this rule set")
-    p.add_argument("--category", help="only types of this category (bed, sofa, ...)")
-    p.add_argument("--json", action="store_true", help="print JSON instead of a table")
-    p.set_defaults(func=_cmd_catalog)
-    p = sub.add_parser("rules", help="list the rule sets, or every value of one set with its source")
-    p.add_argument("set", nargs="?", help="rule set id (omit to list the sets)")
-    p.add_argument("--plan", help="show the set a plan file picks, with its overrides")
-    p.add_argument("--json", action="store_true", help="print JSON instead of a table")
-    p.set_defaults(func=_cmd_rules)
-    p = sub.add_parser("draw", help="draw a plan to scale as SVG (furniture where the plan puts it)")
-    p.add_argument("plan", help="plan file (.toml)")
-    p.add_argument("-o", "--output", required=True, help="SVG file to write")
-    p.add_argument("--rules", metavar="SET", help="rule set for the use zones (default: the plan's)")
-    p.add_argument("--title", type=_text_argument,
-                   help="headline of the title block (default: the plan's name)")
-    p.add_argument("--show", default="all", metavar="LAYERS",
-                   help="layers to draw, comma-separated: zones, routes, turning, dimensions "
-                        "(default all; 'none' for the bare plan)")
-    p.set_defaults(func=_cmd_draw)
-    p = sub.add_parser("export", help="export a plan as GeoJSON in local coordinates (metres)")
-    p.add_argument("plan", help="plan file (.toml)")
-    p.add_argument("-o", "--output", required=True, help="GeoJSON file to write")
-    p.add_argument("--rules", metavar="SET", help="rule set for the use zones (default: the plan's)")
-    p.set_defaults(func=_cmd_export)
-    p = sub.add_parser("check", help="audit a furnished plan: clearances, circulation, turning "
-                                     "space (exit 1 when a rule fails)")
-    p.add_argument("plan", help="plan file (.toml) with furniture placed")
-    p.add_argument("--rules", metavar="SET", help="rule set to audit against, as published; the plan's "
-                   "overrides apply only to its own set (default: the plan's)")
-    p.add_argument("--json", action="store_true", help="print the findings as JSON")
-    p.add_argument("--draw", metavar="SVG", help="also write the plan with the failures marked")
-    p.set_defaults(func=_cmd_check)
-    p = sub.add_parser("solve", help="find furniture arrangements that pass every rule, or say "
-                                     "why none exists (exit 1 impossible, 3 time limit)")
-    p.add_argument("plan", help="plan file (.toml) with the furniture wanted")
-    p.add_argument("--candidates", type=int, default=3, metavar="N",
-                   help="arrangements to find (default 3)")
-    p.add_argument("--time-limit", type=float, default=20.0, metavar="S",
-                   help="seconds for the whole search (default 20)")
-    p.add_argument("--rules", metavar="SET", help="rule set to satisfy, as published; the plan's "
-                   "overrides apply only to its own set (default: the plan's)")
-    p.add_argument("--seed", type=_within(0, SEED_MAX), default=0, metavar="K",
-                   help=f"random seed, 0 to {SEED_MAX}; same seed, same result")
-    p.add_argument("--grid", type=_within(1, GRID_MAX_MM), default=50, metavar="MM",
-                   help="grid (mm) for angled walls, door swings and the turning space (default 50)")
-    p.add_argument("--strict", action="store_true",
-                   help="a flat that fails a rule before any furniture is placed is impossible "
-                        "(default: furnish around such building findings, exit 1, not compliant)")
-    p.add_argument("-o", "--output", metavar="DIR",
-                   help="folder for the plan files and drawings (default ./<plan>-layouts/)")
-    p.set_defaults(func=_cmd_solve)
-    p = sub.add_parser("compare", help="compare furnished plans side by side: rules failed, "
-                       "walking per day, narrowest passage, turning spaces, free floor")
-    p.add_argument("plans", nargs="+", metavar="PLAN", help="furnished plan files (.toml)")
-    p.add_argument("--rules", help="judge every plan under this rule set, without the plans' "
-                   "overrides (default: each plan's own set and overrides)")
-    p.add_argument("--html", metavar="FILE", help="also write the client report (HTML) here")
-    p.add_argument("--title", type=_text_argument, help="title of the HTML report")
-    p.set_defaults(func=_cmd_compare)
-    p = sub.add_parser("report", help="write the client report (HTML) for one or more "
-                       "furnished plans: drawings, routes, metrics, findings with sources")
-    p.add_argument("plans", nargs="+", metavar="PLAN", help="furnished plan files (.toml)")
-    p.add_argument("-o", "--output", required=True, metavar="FILE", help="report file (.html)")
-    p.add_argument("--rules", help="judge every plan under this rule set, without the plans' "
-                   "overrides (default: each plan's own set and overrides)")
-    p.add_argument("--title", type=_text_argument, help="title of the report")
-    p.set_defaults(func=_cmd_report)
-    p = sub.add_parser("import", help="read one storey of an IFC building model (IFC2x3, IFC4) "
-                       "into a plan file, reporting every guess")
-    p.add_argument("model", help="IFC model (.ifc)")
-    p.add_argument("-o", "--output", metavar="PLAN", help="plan file to write (.toml)")
-    p.add_argument("--list", action="store_true", help="list the storeys, spaces and flats")
-    p.add_argument("--storey", metavar="NAME|N", help="storey name or number from --list "
-                   "(default: the one with most spaces and doors)")
-    p.add_argument("--spaces", metavar="PATTERN", help="only spaces whose name or long name "
-                   "matches this pattern (* and ? wildcards)")
-    p.add_argument("--entrance", metavar="DOOR", help="the entrance door (GlobalId, IFC name or "
-                   "plan id; default: the doors to no imported space)")
-    p.add_argument("--rules", metavar="SET", help="rule set for the plan (default: everyday)")
-    p.set_defaults(func=_cmd_import)
-    return parser
+#: What each subcommand runs (the parser in :mod:`roomfit.cli_args` names them).
+COMMANDS: dict[str, Callable[[argparse.Namespace], int]] = {
+    "validate": _cmd_validate, "catalog": _cmd_catalog, "rules": _cmd_rules, "draw": _cmd_draw,
+    "export": _cmd_export, "check": _cmd_check, "solve": _cmd_solve, "compare": _cmd_compare,
+    "report": _cmd_report, "import": _cmd_import,
+}
 
 
 def main(argv: Sequence[str] | None = None) -> int:
-    parser = build_parser()
-    args = parser.parse_args(argv)
-    func: Callable[[argparse.Namespace], int] = args.func
+    """Run one subcommand; the exit code is the module docstring's."""
+    args = build_parser().parse_args(argv)
+    func = COMMANDS[args.command]
     try:
         with interrupts_raised():
             return func(args)

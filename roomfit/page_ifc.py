@@ -15,7 +15,7 @@ from contextlib import contextmanager
 from pathlib import Path
 from typing import Any
 
-from roomfit.audit.marks import Mark
+from roomfit.audit.marks import Mark, MarkKind
 from roomfit.plan.data import OUTSIDE, Leaf, Plan
 from roomfit.plan.floor import Imported
 from roomfit.plan.floordata import ModelSummary
@@ -83,7 +83,7 @@ def review_marks(imported: Imported) -> list[Mark]:
     for n in imported.notes:
         if n.about in doors and n.kind in ("guessed", "assumed"):
             reasons.setdefault(n.about, []).append(f"{n.kind}: {n.text}")
-    return [Mark("note", "; ".join(texts), (float(doors[d].at[0]), float(doors[d].at[1])), ())
+    return [Mark(MarkKind.NOTE, "; ".join(texts), (float(doors[d].at[0]), float(doors[d].at[1])), ())
             for d, texts in reasons.items()]
 
 

@@ -51,7 +51,7 @@ def load_scan(name: str, data: bytes) -> Image.Image:
     150 dpi (with ``pypdfium2``). Raises :class:`PlanError` naming the file for anything else."""
     if data[:5] == b"%PDF-":
         try:
-            import pypdfium2 as pdfium  # type: ignore[import-untyped]
+            import pypdfium2 as pdfium
         except ImportError:
             raise PlanError(Problem("", "reading a PDF needs the pypdfium2 package",
                                     "install roomfit with the page extra, or save the page as PNG"),

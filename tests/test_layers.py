@@ -40,7 +40,7 @@ STAGE = {
     "present.report": 8,
     "bench": 9, "bench.instances": 9, "bench.baseline": 9, "bench.run": 9, "bench.__main__": 9,
     "bench.certified": 9,
-    "page": 9, "page_ifc": 9, "page_edit": 9, "page_trace": 9, "cli": 10, "app": 12,
+    "page": 9, "page_ifc": 9, "page_edit": 9, "page_trace": 9, "cli_args": 10, "cli": 10, "app": 12,
     # the page's parts beside app.py (they alone, with app.py, may use streamlit)
     "app_common": 11, "app_edit": 11, "app_trace": 11, "app_ifc": 11,
 }

@@ -236,7 +236,7 @@ def door_leaf(plan: Plan, door: Door) -> tuple[tuple[float, float],
     n = n0 if door.swings_into == door.rooms[0] else (-n0[0], -n0[1])
     hinge, closed = _hinge(door, at, n)
     disc = _quarter_disc(hinge, closed, n, door.width)
-    return hinge, tuple(disc.exterior.coords)[1:-1]
+    return hinge, tuple((x, y) for x, y in disc.exterior.coords[1:-1])
 
 
 def door_shape(plan: Plan, door: Door, rules: RuleSet) -> DoorShape:
@@ -307,6 +307,6 @@ def fixture_zone(fixture: Fixture) -> Polygon | None:
 
 def free_floor(room: Room, plan: Plan, obstacles: list[BaseGeometry] | None = None) -> BaseGeometry:
     """The room's floor less its fixtures and the given obstacles (furniture footprints)."""
-    taken = [fixture_polygon(f) for f in plan.fixtures if f.room == room.id]
+    taken: list[BaseGeometry] = [fixture_polygon(f) for f in plan.fixtures if f.room == room.id]
     taken += obstacles or []
     return room_polygon(room).difference(unary_union(taken)) if taken else room_polygon(room)

@@ -119,7 +119,7 @@ def _read_fixtures(r: FieldReader, data: dict, rooms: dict[str, Room]) -> list[F
         if None in (fid, room, kind, label, outline, height) or ("zone" in t and zone is None):
             continue
         rp = Polygon(rooms[room].outline)  # type: ignore[index]
-        outside = Polygon(outline).difference(rp).area  # type: ignore[arg-type]
+        outside = Polygon(outline).difference(rp).area
         if outside > 1.0:
             r.add(f"{f}.outline", f"{outside / 1e6:.3f} m2 of the fitting lies outside room {room!r}")
             continue

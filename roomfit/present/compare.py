@@ -196,8 +196,7 @@ def compare_row(plan: Plan, name: str, rules: RuleSet | None = None) -> Row:
 def _best(rows: Sequence[Row]) -> tuple[tuple[str, tuple[int, ...]], ...]:
     out = []
     for m in METRICS:
-        vals = [(i, r.value(m.id)) for i, r in enumerate(rows)]
-        vals = [(i, v) for i, v in vals if v is not None]
+        vals = [(i, v) for i, r in enumerate(rows) if (v := r.value(m.id)) is not None]
         if len(vals) < 2:
             continue
         pick = min if m.better == Better.LOWER else max

@@ -60,7 +60,7 @@ def _geometry(geom: BaseGeometry) -> dict[str, Any]:
     """GeoJSON geometry in metres, polygons oriented as RFC 7946 asks."""
     if isinstance(geom, Polygon):
         geom = orient(geom, sign=1.0)
-    elif geom.geom_type == "MultiPolygon":
+    elif isinstance(geom, shapely.MultiPolygon):
         geom = shapely.MultiPolygon([orient(p, sign=1.0) for p in geom.geoms])
     return _rounded(mapping(shapely.transform(geom, lambda xy: xy / 1000.0)))
 
@@ -126,10 +126,10 @@ def to_geojson(plan: Plan, rules: RuleSet) -> dict[str, Any]:
             rotation=pl.rotation, front=_COMPASS[side_direction("front", pl.rotation)],
             width_mm=spec.width, depth_mm=spec.depth, height_mm=spec.height, locked=p.locked))
         for z, poly in use_zones(spec, pl):
-            f = _feature("use_zone", p.id, spec.label, poly, side=z.side, zone_kind=z.kind,
+            zone_feature = _feature("use_zone", p.id, spec.label, poly, side=z.side, zone_kind=z.kind,
                          depth_mm=z.depth, rule=z.rule, room=pl.room)
-            f["id"] = f"use_zone:{p.id}:{z.side}"
-            features.append(f)
+            zone_feature["id"] = f"use_zone:{p.id}:{z.side}"
+            features.append(zone_feature)
     return {
         "type": "FeatureCollection",
         "roomfit": {"plan": plan.name, "client": plan.client, "address": plan.address,

@@ -90,7 +90,7 @@ def _routes_table(row: Row) -> str:
            "<th>Doorways</th><th>Notes</th></tr>"]
     for t in rs.trips:
         name = escape(t.name) + (" (night)" if t.night else "")
-        if not t.reachable:
+        if not t.reachable or t.length_mm is None:
             out.append(f"<tr><td>{name}</td><td>{t.per_day:g}</td><td colspan='6' class='fail'>"
                        f"unreachable</td><td>{escape(t.reason)}</td></tr>")
             continue
