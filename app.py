@@ -376,7 +376,7 @@ def _results(done: dict[str, Any]) -> None:
         with st.spinner("Checking and drawing each arrangement…"):
             table = compare.compare([plan.with_layout(c.layout) for c in result.candidates],
                                     [f"Arrangement {i + 1}" for i in range(len(result.candidates))],
-                                    rules)
+                                    rules, [(c.audit, c.routes) for c in result.candidates])
             shown = [_present(row, i) for i, row in enumerate(table.rows)]
             done["shown"] = (shown, table, report.build_report(table))
     shown, table, both = done["shown"]

@@ -228,8 +228,6 @@ def _cmd_solve(args: argparse.Namespace) -> int:
     from dataclasses import replace
     from pathlib import Path
 
-    from roomfit.audit.check import audit
-    from roomfit.audit.routes import score_routes
     from roomfit.interrupts import signals_kept
     from roomfit.plan.data import RuleChoice
     from roomfit.plan.write import dumps_plan
@@ -265,8 +263,7 @@ def _cmd_solve(args: argparse.Namespace) -> int:
     for c in result.candidates:
         furnished = chosen.with_layout(c.layout)
         files = [str(run.add(f"{stem}-{c.rank + 1}.toml", dumps_plan(furnished)))]
-        verdict = c.audit if c.audit is not None else audit(furnished, rules)
-        routes = c.routes if c.routes is not None else score_routes(furnished, rules)
+        verdict, routes = c.audit, c.routes
         svg = draw_svg(furnished, rules, title=f"{plan.name}: candidate {c.rank + 1}",
                        findings=verdict.findings, routes=routes)  # routes, turning, clearances
         files.append(str(run.add(f"{stem}-{c.rank + 1}.svg", svg)))

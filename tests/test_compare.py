@@ -137,3 +137,27 @@ def test_unplaced_pieces_and_cut_off_turning_spaces_are_not_best():
     row = compare([low], ["low"], iso).rows[0]
     assert [f.ok for f in row.audit.by_rule("turning.space")] == [True]
     assert row.turning_have == 0 and row.turning_need == 1
+
+
+def test_results_already_known_are_read_not_recomputed(monkeypatch: pytest.MonkeyPatch) -> None:
+    """A solver candidate carries its audit and route scores: the comparison reads them and
+    gives the same row as judging the arrangement afresh."""
+    import roomfit.present.compare as cmp_module
+    from roomfit.audit.routes import score_routes
+
+    plans = [_arrangement(900, 1500), _arrangement(1200, 3300)]
+    fresh = compare(plans, ["near", "wide"], EVERYDAY)
+    known = [(audit(p, EVERYDAY), score_routes(p, EVERYDAY)) for p in plans]
+
+    def judged_again(*_: object, **__: object) -> None:
+        raise AssertionError("an arrangement with known results was judged again")
+
+    monkeypatch.setattr(cmp_module, "audit", judged_again)
+    monkeypatch.setattr(cmp_module, "score_routes", judged_again)
+    carried = compare(plans, ["near", "wide"], EVERYDAY, known)
+    for a, b in zip(fresh.rows, carried.rows, strict=True):
+        assert (a.rules_failed, a.walking_m_per_day, a.narrowest_mm, a.turning_have) == (
+            b.rules_failed, b.walking_m_per_day, b.narrowest_mm, b.turning_have)
+    assert fresh.best == carried.best
+    with pytest.raises(ValueError, match="one \\(audit, routes\\) per plan"):
+        compare(plans, ["near", "wide"], EVERYDAY, known[:1])

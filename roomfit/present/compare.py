@@ -48,7 +48,12 @@ __all__ = [
     "compare_row",
     "render_table",
     "quality_notes",
+    "Judged",
 ]
+
+#: An arrangement's audit (route widths measured) and route scores, computed once.
+Judged = tuple[Audit, RouteScores]
+
 
 class Better(StrEnum):
     """Which way a metric improves."""
@@ -170,11 +175,14 @@ def _free_share(plan: Plan, rules: RuleSet) -> float:
     return (floor.area - used) / floor.area if floor.area else 0.0
 
 
-def compare_row(plan: Plan, name: str, rules: RuleSet | None = None) -> Row:
-    """Audit, route and measure one arrangement (``rules``: the plan's own set if None)."""
+def compare_row(plan: Plan, name: str, rules: RuleSet | None = None,
+                judged: Judged | None = None) -> Row:
+    """Audit, route and measure one arrangement (``rules``: the plan's own set if None).
+
+    ``judged``: the arrangement's audit (route widths measured) and route scores when they
+    are already known (a solver candidate carries them), so they are not computed again."""
     rs = rules if rules is not None else rules_for(plan)
-    result = audit(plan, rs)
-    routes = score_routes(plan, rs)
+    result, routes = judged if judged is not None else (audit(plan, rs), score_routes(plan, rs))
     turning = result.by_rule("turning.space")
     cut_off = {f.room for f in result.by_rule("route.reach")
                if not f.ok and f.message.startswith("the turning space in ")}
@@ -208,12 +216,14 @@ def _best(rows: Sequence[Row]) -> tuple[tuple[str, tuple[int, ...]], ...]:
 
 
 def compare(plans: Sequence[Plan], names: Sequence[str] | None = None,
-            rules: RuleSet | Sequence[RuleSet] | None = None) -> Comparison:
+            rules: RuleSet | Sequence[RuleSet] | None = None,
+            judged: Sequence[Judged] | None = None) -> Comparison:
     """One row per arrangement (each plan's as-is layout), best values marked.
 
     ``names`` label the rows (default: the plans' names); ``rules`` is one rule set for all,
     one per plan (as ``rules.sets.choose_rules`` picks them for ``--rules``), or None for each
-    plan's own with its overrides.
+    plan's own with its overrides; ``judged``, one (audit, route scores) per plan where they
+    are known already (``compare_row``).
     """
     labels = list(names) if names is not None else [p.name for p in plans]
     if len(labels) != len(plans):
@@ -221,7 +231,11 @@ def compare(plans: Sequence[Plan], names: Sequence[str] | None = None,
     per_plan = list(rules) if isinstance(rules, Sequence) else [rules] * len(plans)
     if len(per_plan) != len(plans):
         raise ValueError("compare needs one rule set per plan")
-    rows = tuple(compare_row(p, n, r) for p, n, r in zip(plans, labels, per_plan, strict=True))
+    known = list(judged) if judged is not None else [None] * len(plans)
+    if len(known) != len(plans):
+        raise ValueError("compare needs one (audit, routes) per plan")
+    rows = tuple(compare_row(p, n, r, j)
+                 for p, n, r, j in zip(plans, labels, per_plan, known, strict=True))
     return Comparison(rows, _best(rows))
 
 

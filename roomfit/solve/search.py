@@ -111,8 +111,7 @@ class SolveOptions:
 class Candidate:
     """One verified arrangement: ``objective`` (lower is better), the proven ``bound``,
     whether it is proven ``optimal`` (under the diversity rules of earlier candidates), its
-    ``rank`` (0 = best by ``route_key``, then objective) and ``route_key``, the route scorer's
-    rank key (unreachable trips, walking metres per day; ``roomfit.audit.routes``).
+    ``rank`` (0 = best by ``route_key``, then objective).
 
     ``audit`` (``roomfit.audit.check.Audit``, route widths measured) and ``routes``
     (``roomfit.audit.routes.RouteScores``) are the results for the whole furnished plan,
@@ -123,9 +122,13 @@ class Candidate:
     bound: float
     optimal: bool
     rank: int
-    route_key: tuple[int, float] | None = None
-    audit: Audit | None = None
-    routes: RouteScores | None = None
+    audit: Audit
+    routes: RouteScores
+
+    @property
+    def route_key(self) -> tuple[int, float]:
+        """The route scorer's rank key: unreachable trips, walking metres per day."""
+        return self.routes.rank_key
 
     @property
     def gap(self) -> float:
@@ -262,7 +265,8 @@ def solve(plan: Plan, rules: RuleSet, options: SolveOptions | None = None,
         return SolveResult(Status.IMPOSSIBLE, (), _bare_faults(plan, rules, bare), stats(),
                            building=building)
     if not groups:  # nothing to place: the bare apartment (with its locked pieces) passed
-        return SolveResult(Status.OPTIMAL, (Candidate(plan.layout, 0.0, 0.0, True, 0, None, bare),),
+        return SolveResult(Status.OPTIMAL, (Candidate(plan.layout, 0.0, 0.0, True, 0, bare,
+                                                       score_routes(plan, rules)),),
                            None, stats())
     lanes = max(1, options.workers)
     searches += [GroupSearch(plan, rules, rooms, group_specs, options, clock, progress, counters,
@@ -407,8 +411,7 @@ def _combine(plan: Plan, rules: RuleSet, searches: list[GroupSearch], wanted: in
             continue
         routes = score_routes(furnished, rules)
         out.append(Candidate(layout, sum(f.objective for f in picks), sum(f.bound for f in picks),
-                             all(f.optimal for f in picks), len(out), routes.rank_key, verdict,
-                             routes))
+                             all(f.optimal for f in picks), len(out), verdict, routes))
     # fewer unmet functional-group rules first (a layout a designer would sign), then ranked
     # as `roomfit compare` ranks plans: fewer unreachable trips, then fewer walking metres
     # per day; the objective breaks ties
