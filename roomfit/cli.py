@@ -233,7 +233,7 @@ def _cmd_solve(args: argparse.Namespace) -> int:
     from roomfit.plan.write import dumps_plan
     from roomfit.present.draw import draw_svg
     from roomfit.solve.outcome import describe
-    from roomfit.solve.search import SolveOptions, solve
+    from roomfit.solve.search import SolveOptions, Status, solve
 
     plan, rules = _plan_and_rules(args)
     run = _run_folder(args)  # a folder that may not be replaced is refused before the search
@@ -256,7 +256,7 @@ def _cmd_solve(args: argparse.Namespace) -> int:
             print(f"  {line}")
         _finish_run(run, args, rules, result.status)
         print(CAUTION)
-        return EXIT_FAIL if result.status == "impossible" else EXIT_TIMEOUT
+        return EXIT_FAIL if result.status == Status.IMPOSSIBLE else EXIT_TIMEOUT
     stem = Path(args.plan).stem
     chosen = replace(plan, rules=RuleChoice(rules.id, plan.rules.overrides))
     print(f"{'candidate':>9}  {'objective':>9}  {'optimal / gap':>13}  {'walking':>10}  checker  files")

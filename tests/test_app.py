@@ -415,14 +415,14 @@ def test_check_tab_gives_the_cli_findings(capsys: pytest.CaptureFixture[str]) ->
 
 
 def test_outcome_words_for_timeout_and_impossible() -> None:
-    from roomfit.solve.search import Explanation, SolveResult, SolveStats
+    from roomfit.solve.search import Explanation, SolveResult, SolveStats, Status
 
-    none = SolveResult("timeout", (), None, SolveStats())
+    none = SolveResult(Status.TIMEOUT, (), None, SolveStats())
     words = page.describe_outcome(none, 20)
     assert words.level == "warning" and "NOT proven impossible" in words.headline
     ex = Explanation("the bed is longer than the room", ("bed",), ("piece.inside",),
                      ("without the bed it fits",))
-    no = page.describe_outcome(SolveResult("impossible", (), ex, SolveStats()), 20)
+    no = page.describe_outcome(SolveResult(Status.IMPOSSIBLE, (), ex, SolveStats()), 20)
     assert no.level == "error" and "the bed is longer than the room" in no.headline
     assert no.details == ("Try: without the bed it fits",)
 

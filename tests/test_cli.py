@@ -51,7 +51,7 @@ def test_timeout_never_claims_more_time_will_not_help(elapsed: float, tmp_path: 
     from roomfit.solve import search as solver
 
     def gave_up(*_args: object, **_kw: object) -> solver.SolveResult:
-        return solver.SolveResult("timeout", (), None, solver.SolveStats(elapsed=elapsed))
+        return solver.SolveResult(solver.Status.TIMEOUT, (), None, solver.SolveStats(elapsed=elapsed))
 
     monkeypatch.setattr(solver, "solve", gave_up)
     assert main(["solve", str(PLAN), "--time-limit", "10", "-o", str(tmp_path)]) == 3

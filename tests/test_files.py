@@ -124,7 +124,7 @@ def test_a_run_without_layouts_replaces_the_previous_candidates(
     assert _solve(tmp_path, "--candidates", "2") == 0
 
     def gave_up(*_args: object, **_kw: object) -> solver.SolveResult:
-        return solver.SolveResult("timeout", (), None, solver.SolveStats(elapsed=1.0))
+        return solver.SolveResult(solver.Status.TIMEOUT, (), None, solver.SolveStats(elapsed=1.0))
 
     monkeypatch.setattr(solver, "solve", gave_up)
     assert _solve(tmp_path) == 3

@@ -10,48 +10,58 @@ findings (``SolveResult.building``) are worded as *not* compliant, each finding 
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Any
+from enum import StrEnum
 
-__all__ = ["Outcome", "describe"]
+from roomfit.solve.search import SolveResult, Status
+
+__all__ = ["Level", "Outcome", "describe"]
+
+
+class Level(StrEnum):
+    """How the words should be shown: good news, a caution, or a refusal."""
+
+    SUCCESS = "success"
+    WARNING = "warning"
+    ERROR = "error"
 
 
 @dataclass(frozen=True)
 class Outcome:
-    """How a solve ended, in words: ``level`` is ``success``, ``warning`` or ``error``; the
-    ``headline`` is one sentence, ``details`` the tested fixes and notes."""
+    """How a solve ended, in words: a :class:`Level`; the ``headline`` is one sentence,
+    ``details`` the tested fixes and notes."""
 
-    level: str
+    level: Level
     headline: str
     details: tuple[str, ...] = ()
 
 
-def describe(result: Any, time_limit: float) -> Outcome:
-    """Plain words for a ``roomfit.solve.search.SolveResult``.
+def describe(result: SolveResult, time_limit: float) -> Outcome:
+    """Plain words for a solve's result (``time_limit`` in s, as granted).
 
-    >>> from roomfit.solve.search import SolveResult, SolveStats
-    >>> describe(SolveResult("timeout", (), None, SolveStats()), 20).headline[:40]
+    >>> from roomfit.solve.search import SolveStats
+    >>> describe(SolveResult(Status.TIMEOUT, (), None, SolveStats()), 20).headline[:40]
     'No arrangement that passes every rule wa'
     """
     n = len(result.candidates)
     ex = result.explanation
-    notes = tuple(getattr(result, "notes", ()))
-    building = tuple(getattr(result, "building", ()))
+    notes = result.notes
+    building = result.building
     notes = tuple(f"Building finding: {b.finding.message}" + (f". Change: {b.change}" if b.change
                                                               else "") for b in building) + notes
     fixes = tuple(f"Try: {f}" for f in ex.fixes) if ex is not None else ()
     fixes += tuple(f"Advice: {a}" for a in ex.advice) if ex is not None else ()
     plural = "s" if n != 1 else ""
-    if result.status in ("found", "optimal") and n and building:
-        return Outcome("warning", f"{n} arrangement{plural} found around {len(building)} building "
+    if result.status in (Status.FOUND, Status.OPTIMAL) and n and building:
+        return Outcome(Level.WARNING, f"{n} arrangement{plural} found around {len(building)} building "
                        f"finding{'s' if len(building) != 1 else ''} that no furniture can cure: "
                        "NOT a compliant flat. Every other rule passes.", notes)
-    if result.status in ("found", "optimal") and n:
+    if result.status in (Status.FOUND, Status.OPTIMAL) and n:
         best = (" (each the best possible for the scoring used, among arrangements that differ "
-                "enough from the ones before)" if result.status == "optimal" else "")
-        return Outcome("success", f"{n} arrangement{plural} found{best}.", notes)
-    if result.status == "impossible":
+                "enough from the ones before)" if result.status == Status.OPTIMAL else "")
+        return Outcome(Level.SUCCESS, f"{n} arrangement{plural} found{best}.", notes)
+    if result.status == Status.IMPOSSIBLE:
         summary = ex.summary if ex is not None else "The furniture cannot fit under these rules."
-        return Outcome("error", f"No arrangement exists: {summary}", fixes + notes)
-    return Outcome("warning", f"No arrangement that passes every rule was found within "
+        return Outcome(Level.ERROR, f"No arrangement exists: {summary}", fixes + notes)
+    return Outcome(Level.WARNING, f"No arrangement that passes every rule was found within "
                    f"{time_limit:g} s. This is NOT proven impossible: allow more time, or "
                    "remove or lock a piece and try again.", fixes + notes)
