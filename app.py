@@ -25,6 +25,7 @@ from app_ifc import ifc_review, ifc_sidebar
 from app_trace import trace
 from roomfit import page
 from roomfit.audit.geometry import room_polygon
+from roomfit.audit.ideas import moves
 from roomfit.audit.quality import quality_record
 from roomfit.errors import RoomfitError
 from roomfit.plan.data import Plan
@@ -317,13 +318,15 @@ def _rules(plan: Plan, rules: RuleSet) -> None:
     st.dataframe(page.rule_rows(rules), hide_index=True)
 
 
-def _present(row: Any, index: int) -> dict[str, Any]:
+def _present(row: Any, index: int, before: Plan) -> dict[str, Any]:
     """One arrangement, audited, routed and measured (a ``compare.Row``), with its drawing
-    (routes drawn, failures marked; ids prefixed by ``index``) and its client report."""
+    (routes drawn, failures marked; ids prefixed by ``index``), its client report and, when
+    ``before`` has furniture placed, the moving list from there."""
     single = compare.Comparison((row,), ())
     title = f"{row.plan.name}: {row.name}"
     return {"row": row, "svg": report.drawing(row, index),
-            "report": report.build_report(single, title=title)}
+            "report": report.build_report(single, title=title),
+            "moves": moves(before, row.plan, row.rules) if before.layout else None}
 
 
 def _solve(plan: Plan, rules: RuleSet) -> None:
@@ -377,7 +380,7 @@ def _results(done: dict[str, Any]) -> None:
             table = compare.compare([plan.with_layout(c.layout) for c in result.candidates],
                                     [f"Arrangement {i + 1}" for i in range(len(result.candidates))],
                                     rules, [(c.audit, c.routes) for c in result.candidates])
-            shown = [_present(row, i) for i, row in enumerate(table.rows)]
+            shown = [_present(row, i, plan) for i, row in enumerate(table.rows)]
             done["shown"] = (shown, table, report.build_report(table))
     shown, table, both = done["shown"]
     per_row = 2 if len(shown) in (2, 4) else min(3, len(shown))  # readable: two a row when four
@@ -413,6 +416,9 @@ def _candidate(i: int, a: dict[str, Any]) -> None:
                       for q in quality_record(row.quality)], hide_index=True)
     with st.expander("Daily routes"):
         st.table(page.route_rows(row.routes))
+    if a["moves"] is not None:
+        with st.expander("Moving list from today's arrangement"):
+            st.markdown("\n".join(f"- {text(m)}" for m in a["moves"]) or "Nothing moves.")
     st.button("Keep this arrangement", key=f"keep_{i}", on_click=_keep, args=(i,))
     _downloads(row.plan, a, f"cand{i + 1}", f"-arrangement-{i + 1}")
 

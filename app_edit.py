@@ -197,6 +197,15 @@ def _door(did: str) -> None:
          where="building", notice=f"Door {did} changed.")
 
 
+def _slide(did: str, way: str) -> None:
+    by = int(state()[key("door_slide", did)])
+    edit(page_edit.slide_door, did, by, where="building",
+         notice=f"Door {did} moved {abs(by)} mm {way if by >= 0 else _OPPOSITE[way]} along its wall.")
+
+
+_OPPOSITE = {"east": "west", "north": "south"}
+
+
 def _window(wid: str, remove: bool = False) -> None:
     s = state()
     edit(page_edit.edit_window, wid, width=int(s[key("win_w", wid)]), sill=int(s[key("win_s", wid)]),
@@ -249,6 +258,11 @@ def building(plan: Plan, rules: RuleSet) -> None:
                          index=0 if d.hinge != "right" else 1, horizontal=True,
                          key=key("door_hinge", did))
                 st.form_submit_button("Apply to the door", on_click=_door, args=(did,))
+            way = page_edit.door_slide_way(plan, did)
+            with st.form(key("door_slide_form", did), border=True):
+                st.number_input(f"Move along its wall (mm; + {way}, − {_OPPOSITE[way]})",
+                                value=0, step=50, key=key("door_slide", did))
+                st.form_submit_button("Move the door", on_click=_slide, args=(did, way))
         else:
             st.caption("No doors.")
     with c_win:

@@ -21,7 +21,7 @@ from typing import Any
 
 from shapely import Point, Polygon
 
-from roomfit.audit.geometry import footprint_box, side_direction, turned_size
+from roomfit.audit.geometry import footprint_box, side_direction, turned_size, wall_direction
 from roomfit.errors import PlanError, Problem
 from roomfit.page import EDITED_SOURCE, validated
 from roomfit.plan.data import Door, Leaf, Placement, Plan, Window
@@ -39,6 +39,8 @@ __all__ = [
     "turn_piece",
     "snap_to_wall",
     "edit_door",
+    "door_slide_way",
+    "slide_door",
     "edit_window",
     "set_outline",
     "piece_at",
@@ -207,6 +209,45 @@ def edit_door(plan: Plan, door_id: str, *, width: int | None = None, at: tuple[i
     doors = list(plan.doors)
     doors[i] = new
     return validated(replace(plan, doors=tuple(doors)))
+
+
+def _slide_axis(plan: Plan, door: Door) -> tuple[float, float]:
+    """Unit vector along the door's wall, turned to point east (or north on a wall running
+    north-south), so that a positive slide has a compass name whatever the outline's order."""
+    ux, uy = wall_direction(plan.room(door.rooms[0]).outline, door.at)
+    if ux < -1e-9 or (abs(ux) <= 1e-9 and uy < 0):
+        ux, uy = -ux, -uy
+    return ux, uy
+
+
+def door_slide_way(plan: Plan, door_id: str) -> str:
+    """The compass word of a positive :func:`slide_door` (``east``, ``north``, or the nearer
+    of the two for an angled wall: ``north-east``-ish walls slide towards ``east``).
+
+    >>> from roomfit.plan.data import Room
+    >>> r = Room("r", "Room", "hall", ((0, 0), (3000, 0), (3000, 2000), (0, 2000)))
+    >>> p = Plan("t", (r,), (Door("d", ("r", "outside"), (3000, 1000), 800, Leaf.NONE),))
+    >>> door_slide_way(p, "d")
+    'north'
+    """
+    ux, uy = _slide_axis(plan, plan.doors[_door_index(plan, door_id)])
+    return "east" if abs(ux) >= abs(uy) else "north"
+
+
+def slide_door(plan: Plan, door_id: str, by: int) -> Plan:
+    """``plan`` with one door moved ``by`` mm along its wall (positive: towards
+    :func:`door_slide_way`), as the building findings propose ("move door d 400 mm east").
+    A door that would leave its wall or overlap another opening is refused with the field.
+
+    >>> from roomfit.plan.data import Room
+    >>> r = Room("r", "Room", "hall", ((0, 0), (3000, 0), (3000, 2000), (0, 2000)))
+    >>> p = Plan("t", (r,), (Door("d", ("r", "outside"), (1000, 0), 800, Leaf.NONE),))
+    >>> slide_door(p, "d", 400).doors[0].at
+    (1400, 0)
+    """
+    d = plan.doors[_door_index(plan, door_id)]
+    ux, uy = _slide_axis(plan, d)
+    return edit_door(plan, door_id, at=(round(d.at[0] + by * ux), round(d.at[1] + by * uy)))
 
 
 def edit_window(plan: Plan, window_id: str, *, width: int | None = None,

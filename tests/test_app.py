@@ -364,6 +364,11 @@ def test_solve_compare_keep_and_check_on_the_page() -> None:
         result.candidates[0].layout).layout
     assert first["svg"].lstrip().startswith("<svg") and "<html" in first["report"].lower()
     assert CAUTION_TEXT in first["report"]
+    # the sample stands furnished: each arrangement lists what moves from there
+    from roomfit.audit.ideas import moves
+
+    assert plan.layout and first["moves"] == moves(plan, first["row"].plan, rules)
+    assert any(e.label == "Moving list from today's arrangement" for e in at.expander)
     # keep the second arrangement: every piece gets its place, and the check tab agrees
     at.button(key="keep_1").click()
     at.run(timeout=120)
@@ -482,6 +487,12 @@ def test_edit_a_door_hinge_side_on_the_page() -> None:
     _click(at, "Apply to the door")
     assert re.search(r"doors\[\d\]\.width: 50000 mm is wider than its wall", _errors(at)), _errors(at)
     assert next(d for d in at.session_state["plan"].doors if d.id == "d-bedroom").width == 1000
+    old = next(d for d in at.session_state["plan"].doors if d.id == "d-bedroom").at
+    at.number_input(key=f"door_slide_{gen}_d-bedroom").set_value(-100)
+    _click(at, "Move the door")
+    new = next(d for d in at.session_state["plan"].doors if d.id == "d-bedroom").at
+    assert abs(new[0] - old[0]) + abs(new[1] - old[1]) == 100  # along its wall, 100 mm
+    assert any("moved 100 mm" in s.value for s in at.success), [s.value for s in at.success]
 
 
 def test_plan_text_is_shown_as_typed_and_wide_pieces_keep_the_panel() -> None:

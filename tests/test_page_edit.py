@@ -160,3 +160,44 @@ def test_a_click_on_the_sketch_picks_the_piece_under_it() -> None:
     assert pe.piece_at(plan, *back) == "bed"
     assert drawn.image.getpixel((round(px), round(py))) == (234, 216, 186)  # drawn as a piece
     assert pe.piece_at(plan, -5000, -5000) is None
+
+
+def test_sliding_a_door_as_its_building_finding_proposes_clears_the_approach() -> None:
+    """A door whose pull-side approach floor the corner cuts (2010 ADA Table 404.2.4.1:
+    18 in = 457 mm beyond the latch) gets a proposed move; the page's slide by that much
+    makes the audit pass the approach, and the door stays on its wall."""
+    import re
+
+    from roomfit.plan.read import loads_plan
+    from roomfit.solve.building import building_findings
+
+    plan = loads_plan("""
+roomfit_plan = 1
+name = "A hall whose entrance door stands near a corner (invented)"
+[rules]
+set = "ada-2010"
+[[rooms]]
+id = "hall"
+use = "hall"
+outline = [[0, 0], [4000, 0], [4000, 3600], [0, 3600]]
+[[doors]]
+id = "d-in"
+rooms = ["hall", "outside"]
+at = [600, 0]
+width = 915
+leaf = "hinged"
+swings_into = "hall"
+hinge = "left"
+""", "door.toml")
+    rules = rules_for(plan)
+    found = building_findings(plan, rules, audit(plan, rules))
+    change = next(b.change for b in found or () if b.finding.rule == "door.approach")
+    got = re.search(r"move door d-in (\d+) mm (east|west)", change)
+    assert got, change
+    assert pe.door_slide_way(plan, "d-in") == "east"  # the south wall runs east-west
+    by = int(got.group(1)) * (1 if got.group(2) == "east" else -1)
+    moved = pe.slide_door(plan, "d-in", by)
+    assert moved.doors[0].at == (plan.doors[0].at[0] + by, 0)
+    assert all(f.ok for f in audit(moved, rules).findings if f.rule == "door.approach")
+    with pytest.raises(PlanError, match="doors"):  # off the end of its wall
+        pe.slide_door(plan, "d-in", 10_000)
