@@ -119,6 +119,7 @@ def trace() -> None:
             _click(value, mode)
             st.rerun()
     with right:
+        st.caption(f"Ends of the known length clicked: {len(t['scale_pts'])} of 2")
         st.number_input("Known length (mm)", min_value=1, value=3000, step=10, key="known_mm")
         st.button("Use this scale", key="set_scale", on_click=_set_scale)
         if t["scale"]:

@@ -264,14 +264,21 @@ def test_work_on_the_page_in_a_real_browser(server: str, tmp_path: Path) -> None
             image = panel.frame_locator("iframe").first.locator("img")
             expect(image).to_be_visible()
 
-            def click(x: int, y: int) -> None:
-                image.click(position={"x": x, "y": y})
-                _settle(tab)
-                time.sleep(0.3)
-                _settle(tab)
+            def click(x: int, y: int, then: str) -> None:
+                """Click the scan and wait until the page says ``then``; a click the
+                component dropped while it redrew the scan (a loaded machine) is made again."""
+                for _ in range(3):
+                    image.click(position={"x": x, "y": y})
+                    _settle(tab)
+                    try:
+                        expect(panel.get_by_text(then)).to_be_visible(timeout=20_000)
+                        return
+                    except AssertionError:
+                        continue
+                expect(panel.get_by_text(then)).to_be_visible()
 
-            click(100, 600)
-            click(700, 600)
+            click(100, 600, "Ends of the known length clicked: 1 of 2")
+            click(700, 600, "Ends of the known length clicked: 2 of 2")
             panel.get_by_label("Known length (mm)").fill("6000")
             panel.get_by_role("button", name="Use this scale").click()
             _settle(tab)
@@ -283,9 +290,8 @@ def test_work_on_the_page_in_a_real_browser(server: str, tmp_path: Path) -> None
                 panel.get_by_label("Room name").fill(name)
                 panel.get_by_label("Room name").press("Enter")
                 _settle(tab)
-                for x, y in corners:
-                    click(x, y)
-                expect(panel.get_by_text("4 corners clicked")).to_be_visible()
+                for k, (x, y) in enumerate(corners, start=1):
+                    click(x, y, f"{k} corners clicked")
                 panel.get_by_role("button", name="Close this room").click()
                 _settle(tab)
             tab.screenshot(path=str(shots / "4-traced.png"), full_page=True)
