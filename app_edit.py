@@ -17,7 +17,7 @@ from roomfit import page, page_edit
 from roomfit.audit.check import audit, marks_for
 from roomfit.audit.geometry import room_polygon
 from roomfit.audit.routes import score_routes
-from roomfit.plan.data import Plan
+from roomfit.plan.data import OUTSIDE, Plan
 from roomfit.plan.units import format_area
 from roomfit.present.clearances import LAYERS
 from roomfit.present.draw import draw_svg
@@ -206,6 +206,48 @@ def _slide(did: str, way: str) -> None:
 _OPPOSITE = {"east": "west", "north": "south"}
 
 
+def _new_opening(kind: str) -> None:
+    """Add the door or window the *Add a …* form describes (its wall, the distance along
+    it to the opening's centre, and its sizes)."""
+    s = state()
+    room = s[f"new_{kind}_room"]
+    wall = int(s[f"new_{kind}_wall_{room}"].split(":")[0].removeprefix("wall ")) - 1
+    at = page_edit.on_wall(s["plan"].room(room), wall, int(s[f"new_{kind}_along"]))
+    width = int(s[f"new_{kind}_w"])
+    if kind == "door":
+        edit(page_edit.add_door, (room, s[f"new_door_to_{room}"]), at, width, s["new_door_leaf"],
+             where="building", notice=f"Door added on {room}'s wall at {at}.")
+    else:
+        edit(page_edit.add_window, room, at, width, int(s["new_window_sill"]), where="building",
+             notice=f"Window added on {room}'s wall at {at}.")
+
+
+def _opening_form(plan: Plan, kind: str) -> None:
+    """The form that adds a door (to another room or outside) or a window on a room's wall."""
+    rooms = [r.id for r in plan.rooms]
+    with st.expander(f"Add a {kind}"):
+        room = st.selectbox("On a wall of", rooms, key=f"new_{kind}_room")
+        st.selectbox("Wall", page_edit.wall_choices(plan.room(room)), key=f"new_{kind}_wall_{room}")
+        with st.form(f"new_{kind}_form", border=False):
+            st.number_input("Centre, mm from the wall's first corner", min_value=0, value=500,
+                            step=50, key=f"new_{kind}_along")
+            st.number_input("Width (mm)" if kind == "window" else "Clear width (mm)",
+                            min_value=1, value=900, step=10, key=f"new_{kind}_w")
+            if kind == "door":
+                st.selectbox("To", [r for r in rooms if r != room] + [OUTSIDE],
+                             key=f"new_door_to_{room}")
+                st.selectbox("Leaf (a hinged leaf swings into the first room, hinges left)",
+                             ["hinged", "sliding", "none"], key="new_door_leaf")
+            else:
+                st.number_input("Sill height (mm)", min_value=0, value=900, step=10,
+                                key="new_window_sill")
+            st.form_submit_button(f"Add the {kind}", on_click=_new_opening, args=(kind,))
+
+
+def _remove_door(did: str) -> None:
+    edit(page_edit.remove_door, did, where="building", notice=f"Door {did} removed.")
+
+
 def _window(wid: str, remove: bool = False) -> None:
     s = state()
     edit(page_edit.edit_window, wid, width=int(s[key("win_w", wid)]), sill=int(s[key("win_s", wid)]),
@@ -263,8 +305,10 @@ def building(plan: Plan, rules: RuleSet) -> None:
                 st.number_input(f"Move along its wall (mm; + {way}, − {_OPPOSITE[way]})",
                                 value=0, step=50, key=key("door_slide", did))
                 st.form_submit_button("Move the door", on_click=_slide, args=(did, way))
+            st.button("Remove this door", key="door_remove", on_click=_remove_door, args=(did,))
         else:
             st.caption("No doors.")
+        _opening_form(plan, "door")
     with c_win:
         st.markdown("**Windows**")
         if plan.windows:
@@ -278,6 +322,7 @@ def building(plan: Plan, rules: RuleSet) -> None:
             st.button("Remove this window", key="win_remove", on_click=_window, args=(wid, True))
         else:
             st.caption("No windows.")
+        _opening_form(plan, "window")
     with c_room:
         st.markdown("**Room corners** (add, change or delete rows)")
         rid = st.selectbox("Room", [r.id for r in plan.rooms], key="pick_room")

@@ -45,7 +45,7 @@ __all__ = [
     "error_lines",
     "validated",
     "type_choices",
-    "new_piece_id",
+    "new_id",
     "add_piece",
     "update_piece",
     "remove_piece",
@@ -104,8 +104,8 @@ def type_choices() -> list[tuple[str, str]]:
     return [(t.id, t.label) for t in cat.values()] + [("custom", "Custom size")]
 
 
-def new_piece_id(plan: Plan, base: str) -> str:
-    """A piece id not used anywhere in ``plan``: ``base-1``, ``base-2``, ..."""
+def new_id(plan: Plan, base: str) -> str:
+    """An id (for a piece, door or window) not used anywhere in ``plan``: ``base-1``, ``base-2``, ..."""
     used = ({r.id for r in plan.rooms} | {d.id for d in plan.doors} | {w.id for w in plan.windows}
             | {f.id for f in plan.fixtures} | {p.id for p in plan.furniture})
     n = 1
@@ -141,7 +141,7 @@ def add_piece(plan: Plan, type_id: str, rooms: Sequence[str], label: str = "",
                                 "pick at least one room the piece may stand in"), EDITED_SOURCE)
     base = "piece" if type_id == "custom" else type_id
     w, d, h = _sizes(type_id, width, depth, height)
-    piece = Piece(new_piece_id(plan, base), type_id, tuple(rooms), label.strip(), w, d, h,
+    piece = Piece(new_id(plan, base), type_id, tuple(rooms), label.strip(), w, d, h,
                   access=access or None)
     return validated(replace(plan, furniture=(*plan.furniture, piece)))
 

@@ -16,6 +16,7 @@ so a bad value raises :class:`~roomfit.errors.PlanError` with the field path it 
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass, replace
 from typing import Any
 
@@ -23,8 +24,8 @@ from shapely import Point, Polygon
 
 from roomfit.audit.geometry import footprint_box, side_direction, turned_size, wall_direction
 from roomfit.errors import PlanError, Problem
-from roomfit.page import EDITED_SOURCE, validated
-from roomfit.plan.data import Door, Leaf, Placement, Plan, Window
+from roomfit.page import EDITED_SOURCE, new_id, validated
+from roomfit.plan.data import Door, Leaf, Placement, Plan, Room, Window
 from roomfit.rules.catalog import PieceSpec, resolve_pieces
 from roomfit.rules.sets import rules_for
 
@@ -41,6 +42,11 @@ __all__ = [
     "edit_door",
     "door_slide_way",
     "slide_door",
+    "wall_choices",
+    "on_wall",
+    "add_door",
+    "remove_door",
+    "add_window",
     "edit_window",
     "set_outline",
     "piece_at",
@@ -248,6 +254,58 @@ def slide_door(plan: Plan, door_id: str, by: int) -> Plan:
     d = plan.doors[_door_index(plan, door_id)]
     ux, uy = _slide_axis(plan, d)
     return edit_door(plan, door_id, at=(round(d.at[0] + by * ux), round(d.at[1] + by * uy)))
+
+
+def wall_choices(room: Room) -> list[str]:
+    """One label per wall of ``room``, in outline order: its two corners and length (mm), so
+    a person can tell the walls apart ("wall 1: (0, 0) to (4000, 0), 4000 mm")."""
+    pts = room.outline
+    out = []
+    for i, (a, b) in enumerate(zip(pts, pts[1:] + pts[:1], strict=True)):
+        out.append(f"wall {i + 1}: ({a[0]}, {a[1]}) to ({b[0]}, {b[1]}), "
+                   f"{round(math.dist(a, b))} mm")
+    return out
+
+
+def on_wall(room: Room, wall: int, along: int) -> tuple[int, int]:
+    """The point ``along`` mm from the first corner of wall ``wall`` (0-based, outline order)
+    towards its second: where a new door or window is centred.
+
+    >>> r = Room("r", "Room", "hall", ((0, 0), (3000, 0), (3000, 2000), (0, 2000)))
+    >>> on_wall(r, 1, 500)
+    (3000, 500)
+    """
+    a, b = room.outline[wall], room.outline[(wall + 1) % len(room.outline)]
+    k = along / math.dist(a, b)
+    return round(a[0] + k * (b[0] - a[0])), round(a[1] + k * (b[1] - a[1]))
+
+
+def add_door(plan: Plan, rooms: tuple[str, str], at: tuple[int, int], width: int,
+             leaf: str = "hinged", swings_into: str | None = None,
+             hinge: str | None = None) -> Plan:
+    """``plan`` with a new door on a wall of ``rooms[0]`` joining it to ``rooms[1]`` (a room
+    or ``outside``); a hinged leaf swings into ``rooms[0]`` with its hinges on the left unless
+    told otherwise. Refused at its field like a plan file's door (off the wall, not reaching
+    the other room, overlapping another opening)."""
+    kind = Leaf(leaf)
+    hinged = kind == Leaf.HINGED
+    door = Door(new_id(plan, "d"), (rooms[0], rooms[1]), (int(at[0]), int(at[1])), int(width),
+                kind, (swings_into or rooms[0]) if hinged else None,
+                (hinge or "left") if hinged else None)
+    return validated(replace(plan, doors=(*plan.doors, door)))
+
+
+def remove_door(plan: Plan, door_id: str) -> Plan:
+    """``plan`` without one door (routines that named it are refused at their field)."""
+    i = _door_index(plan, door_id)
+    return validated(replace(plan, doors=plan.doors[:i] + plan.doors[i + 1:]))
+
+
+def add_window(plan: Plan, room: str, at: tuple[int, int], width: int, sill: int) -> Plan:
+    """``plan`` with a new window on a wall of ``room`` (centre ``at``, ``width`` and ``sill``
+    height in mm), refused at its field like a plan file's window."""
+    window = Window(new_id(plan, "w"), room, (int(at[0]), int(at[1])), int(width), int(sill))
+    return validated(replace(plan, windows=(*plan.windows, window)))
 
 
 def edit_window(plan: Plan, window_id: str, *, width: int | None = None,

@@ -12,7 +12,7 @@ from pathlib import Path
 import pytest
 from streamlit.testing.v1 import AppTest
 
-from roomfit import page
+from roomfit import page, page_edit
 from roomfit.errors import PlanError, RuleError
 from roomfit.plan.data import Placement
 from roomfit.plan.read import loads_plan, read_plan
@@ -147,7 +147,7 @@ def test_run_polling_reports_progress_from_worker_threads_on_the_calling_thread(
 def test_new_piece_id_avoids_every_id_in_the_plan() -> None:
     plan = read_plan(STUDIO)
     used = {p.id for p in plan.furniture} | {f.id for f in plan.fixtures}
-    assert page.new_piece_id(plan, "wc") not in used
+    assert page.new_id(plan, "wc") not in used
     assert page.file_stem(plan) == "studio-14-larchmere-row-flat-3"
 
 
@@ -493,6 +493,29 @@ def test_edit_a_door_hinge_side_on_the_page() -> None:
     new = next(d for d in at.session_state["plan"].doors if d.id == "d-bedroom").at
     assert abs(new[0] - old[0]) + abs(new[1] - old[1]) == 100  # along its wall, 100 mm
     assert any("moved 100 mm" in s.value for s in at.success), [s.value for s in at.success]
+
+
+def test_add_a_window_and_a_door_on_the_page() -> None:
+    at = _app()
+    _open_sample(at, WHEELCHAIR)
+    plan = at.session_state["plan"]
+    room = plan.rooms[0]
+    at.selectbox(key="new_window_room").set_value(room.id)
+    at.run()
+    at.selectbox(key=f"new_window_wall_{room.id}").set_value(page_edit.wall_choices(room)[0])
+    at.number_input(key="new_window_along").set_value(300)
+    at.number_input(key="new_window_w").set_value(400)
+    _click(at, "Add the window")
+    new = at.session_state["plan"].windows
+    assert len(new) == len(plan.windows) + 1 and new[-1].room == room.id
+    assert new[-1].at == page_edit.on_wall(room, 0, 300)
+    # a door to nowhere it can reach is refused at its field, and the plan stays
+    before = at.session_state["plan"]
+    at.number_input(key="new_door_along").set_value(10)
+    at.number_input(key="new_door_w").set_value(5000)
+    _click(at, "Add the door")
+    assert at.session_state["plan"] == before
+    assert re.search(r"doors\[\d+\]", _errors(at)), _errors(at)
 
 
 def test_plan_text_is_shown_as_typed_and_wide_pieces_keep_the_panel() -> None:

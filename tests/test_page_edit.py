@@ -119,6 +119,35 @@ def test_windows_and_corners() -> None:
     assert Polygon(more.rooms[0].outline).area == pytest.approx(Polygon(pts).area)
 
 
+def test_add_and_remove_doors_and_windows_on_a_wall() -> None:
+    from roomfit.plan.data import Door, Leaf, Plan, Room
+
+    hall = Room("hall", "Hall", "hall", ((0, 0), (2000, 0), (2000, 3000), (0, 3000)))
+    bed = Room("bed", "Bedroom", "bedroom", ((2000, 0), (5000, 0), (5000, 3000), (2000, 3000)))
+    entrance = Door("d-in", ("hall", "outside"), (1000, 0), 900, Leaf.SLIDING)
+    plan = Plan("two rooms (invented)", (hall, bed), (entrance,))
+    assert pe.wall_choices(hall)[1] == "wall 2: (2000, 0) to (2000, 3000), 3000 mm"
+    at = pe.on_wall(hall, 1, 1500)  # the middle of the shared wall
+    assert at == (2000, 1500)
+    joined = pe.add_door(plan, ("hall", "bed"), at, 900)
+    door = joined.doors[1]
+    assert (door.rooms, door.leaf.value, door.swings_into, door.hinge) == (
+        ("hall", "bed"), "hinged", "hall", "left")
+    # the audit judges the new door at once: its swing and approach findings exist
+    rules = rules_for(joined)
+    assert any(door.id in f.pieces or door.id in f.message for f in audit(joined, rules).findings
+               if f.rule.startswith("door.")), "the new door is audited"
+    with pytest.raises(PlanError, match=r"doors\[1\]"):  # an outer wall does not reach the bedroom
+        pe.add_door(plan, ("hall", "bed"), pe.on_wall(hall, 3, 1500), 900)
+    assert pe.remove_door(joined, door.id) == plan
+    with pytest.raises(PlanError, match="no entrance"):  # the flat keeps a way in
+        pe.remove_door(joined, "d-in")
+    lit = pe.add_window(plan, "bed", pe.on_wall(bed, 1, 1500), 1200, 900)
+    assert (lit.windows[0].room, lit.windows[0].at, lit.windows[0].width) == ("bed", (5000, 1500), 1200)
+    with pytest.raises(PlanError, match=r"windows\[0\]"):  # wider than its wall
+        pe.add_window(plan, "bed", pe.on_wall(bed, 1, 1500), 4000, 900)
+
+
 def _scan(width: int, height: int, rooms: list[list[tuple[int, int]]]) -> bytes:
     img = Image.new("RGB", (width, height), "white")
     draw = ImageDraw.Draw(img)
