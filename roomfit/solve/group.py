@@ -23,10 +23,13 @@ from roomfit.plan.data import Placement, Plan, Trip
 from roomfit.rules.catalog import PieceSpec
 from roomfit.rules.sets import RuleSet
 from roomfit.solve.building import BuildingFinding, key
+from roomfit.solve.construct import FROM_PIECES, construct
 from roomfit.solve.cuts import SoundCut, sound_cut
 from roomfit.solve.groups import main_differs
-from roomfit.solve.model import build_model, decode, differs, hint, tune
+from roomfit.solve.model import build_model, tune
 from roomfit.solve.rooms import room_geometry
+from roomfit.solve.solution import decode, differs, evaluate, hint
+from roomfit.solve.symmetry import interchangeable
 from roomfit.solve.vars import Built
 
 if TYPE_CHECKING:
@@ -54,6 +57,10 @@ _WORK_PER_SECOND = 0.12
 #: first layout before the next stage takes over; the relaxed model with sound cuts gets the
 #: rest (at least 0.7 ** 5 = 17 % of the time, more when stages end by running out of layouts).
 _STAGE_SHARE = 0.3
+
+#: Share of a large group's time for its first layout that building one up unit by unit
+#: may take (``roomfit.solve.construct``); the whole model gets the rest.
+_WARM_SHARE = 0.6
 
 #: Improving solutions of one CP-SAT run audited at most (best first).
 _AUDITS_PER_SOLVE = 4
@@ -210,6 +217,8 @@ class GroupSearch:
         self.quick = False  # stop a run at its first valid layout
         # a layout taken at once (quick) and not yet improved: the next run starts from it
         self.provisional: Found | None = None
+        self.hinted = False  # the model holds the warm start's hint
+        self.warm: dict[str, Placement] = {}  # the layout built up unit by unit
 
     def valid_at(self, seconds: float) -> None:
         if self.first is None:
@@ -235,6 +244,9 @@ class GroupSearch:
         while len(self.found) < wanted and not self.exhausted:
             if self.built is None:
                 self._start(0)
+                if self._warm_start(budget_end) and not self.quick:
+                    self._improve(wanted, budget_end)
+                    continue
             left = max(0.0, budget_end - time.monotonic())
             stage_end = budget_end if self.stage == last else (
                 time.monotonic() + _STAGE_SHARE * left)
@@ -261,6 +273,48 @@ class GroupSearch:
         return ([(True, False, step)] + [(False, False, step >> k) for k in range(4)]
                 + [(False, True, 0)])
 
+    def _warm_start(self, budget_end: float) -> bool:
+        """A large group starts from a layout built unit by unit (``roomfit.solve.construct``,
+        at most ``_WARM_SHARE`` of the time left). When it passes the audit it is the group's
+        first layout at once (provisional: the search improves on it); either way it is the
+        hint of the first run of every stage until a layout is found, and the complete
+        search follows as before. True when it passed."""
+        if len(self.ids - self.locked) < FROM_PIECES:
+            return False
+        deadline = time.monotonic() + _WARM_SHARE * max(0.0, budget_end - time.monotonic())
+        got = construct(self.plan, self.rules, self.specs, self.rooms, self.options.grid,
+                        self.geo, routines_of(self.plan), deadline, self._no_turning(),
+                        self.options.seed)
+        self.counters.add("solves", got.steps)
+        self._say(f"rooms {', '.join(self.rooms)}: built up {len(got.placements)} of "
+                  f"{len(self.ids - self.locked)} pieces unit by unit in {got.steps} steps"
+                  + ("" if got.complete else " (stuck; the whole model takes over)"))
+        self.warm = got.placements
+        self._rehint()
+        if not got.complete or not self._judge(got.placements).passed:
+            return False
+        assert self.built is not None
+        objective = evaluate(self.built, got.placements)
+        if objective is None:  # not a solution of this model after all: the hint stays
+            return False
+        self.provisional = Found(got.placements, objective, 0.0, False)
+        self.found.append(self.provisional)
+        self.valid_at(self.clock.elapsed())
+        self._say(f"rooms {', '.join(self.rooms)}: candidate {len(self.found)} (built up, "
+                  f"objective {objective:g}); improving")
+        return True
+
+    def _rehint(self) -> None:
+        """Give the built model the warm start as its hint while no layout is found."""
+        if self.warm and not self.found and self.built is not None:
+            hint(self.built, self.warm)
+            self.hinted = True
+
+    def _no_turning(self) -> frozenset[str]:
+        """Rooms whose bare floor cannot hold a turning space (building findings)."""
+        return frozenset(b.finding.room for b in self.building
+                         if b.finding.rule == "turning.space" and b.finding.room)
+
     def _improve(self, wanted: int, budget_end: float) -> None:
         """Search again from the layout taken at once in the first phase, with its fair share
         of the time (one of ``wanted``); the best checker-passing layout replaces it. If the
@@ -270,7 +324,8 @@ class GroupSearch:
         self.provisional = None
         self.found.remove(prov)
         before = len(self.found)
-        hint(built, prov.placements)
+        if evaluate(built, prov.placements) is None:  # evaluate hints the whole solution
+            hint(built, prov.placements)
         self._loop(before + 1, budget_end, budget_end, share_of=max(1, wanted - before))
         built.model.clear_hints()
         if len(self.found) > before and self.found[-1].objective <= prov.objective:
@@ -288,14 +343,13 @@ class GroupSearch:
         strengthen, relaxed, _ = self.stages[stage]
         self.built = build_model(self.plan, self.rules, self.specs, self.rooms, self.options.grid,
                                  strengthen=strengthen, relaxed=relaxed, geo=self.geo,
-                                 routines=routines_of(self.plan), no_turning=frozenset(
-                                     b.finding.room for b in self.building
-                                     if b.finding.rule == "turning.space" and b.finding.room))
+                                 routines=routines_of(self.plan), no_turning=self._no_turning())
         movable = [pv for pv in self.built.pieces if not pv.locked]
         for f in self.found:
             self._forbid_near(self.built, movable, f.placements)
         for c in self.sound:
             self._add_cut(self.built, c)
+        self._rehint()
 
     def _loop(self, wanted: int, budget_end: float, first_end: float, share_of: int = 0) -> str:
         """Solve, audit and cut until ``wanted`` layouts are found. A run gets the time left
@@ -318,6 +372,9 @@ class GroupSearch:
             seen = _Collect(self, built)
             status = solver.solve(built.model, seen)
             self.counters.add("solves")
+            if self.hinted:  # the warm start served its run; later runs differ from it
+                built.model.clear_hints()
+                self.hinted = False
             if status == cp_model.MODEL_INVALID:
                 why = built.model.validate().splitlines()[0][:120]
                 raise RoomfitError(Problem(
@@ -400,11 +457,11 @@ class GroupSearch:
         need = min(DIFFER_PIECES, len(movable))
         classes: dict[PieceSpec, list[str]] = {}
         for pv in movable:
-            classes.setdefault(_interchangeable(pv.spec), []).append(pv.spec.id)
+            classes.setdefault(interchangeable(pv.spec), []).append(pv.spec.id)
         flags = []
         for pv in movable:
             d = m.new_bool_var("")
-            for other in classes[_interchangeable(pv.spec)]:
+            for other in classes[interchangeable(pv.spec)]:
                 m.add_bool_or([*differs(m, pv, where[other], MOVE), d.negated()])
             flags.append(d)
         m.add(sum(flags) >= need)
@@ -413,8 +470,5 @@ class GroupSearch:
             m.add_bool_or(visible)
 
 
-def _interchangeable(spec: PieceSpec) -> PieceSpec:
-    """``spec`` without its name: pieces with equal results are interchangeable."""
-    return replace(spec, id="", label="")
 
 

@@ -40,19 +40,17 @@ from ortools.sat.python import cp_model
 from shapely import box
 
 from roomfit.audit.geometry import side_direction
-from roomfit.plan.data import Placement, Plan, Trip
+from roomfit.plan.data import Plan, Trip
 from roomfit.rules.catalog import PieceSpec, ZoneReq
 from roomfit.rules.sets import RuleSet
 from roomfit.solve.rooms import Rect, RoomGeo, cover_rects, cross_thickness, room_geometry
+from roomfit.solve.symmetry import equal_classes, order_equal
 from roomfit.solve.terms import add_objective
 from roomfit.solve.vars import Built, PieceVars, load_preferences, symmetric, wall_lovers
 
 __all__ = [
     "tune",
     "build_model",
-    "decode",
-    "differs",
-    "hint",
     "ROUTE_MARGIN",
     "inscribed",
 ]
@@ -173,12 +171,15 @@ def build_model(
         if strengthen:
             _gap_rules(m, pieces, g, route, grid, related)
     terms = extra_terms(m, pieces) if extra_terms is not None and objective else []
+    routines = plan.routines if routines is None else routines
+    classes = [] if assume else equal_classes(pieces, routines)
+    order_equal(m, classes, max(g.bbox[3] for g in geo.values())
+                - min(g.bbox[1] for g in geo.values()) + 1)
     has_obj = False
     if objective:
         runs = tuple(f for f in plan.fixtures if f.kind == "kitchen_run" and f.room in geo)
-        has_obj = add_objective(m, pieces, geo, prefs, runs, plan,
-                                plan.routines if routines is None else routines, terms)
-    return Built(m, pieces, geo, ctx.groups, has_obj, route)
+        has_obj = add_objective(m, pieces, geo, prefs, runs, plan, routines, terms)
+    return Built(m, pieces, geo, ctx.groups, has_obj, route, classes)
 
 
 def _piece_vars(ctx: _Ctx, spec: PieceSpec) -> PieceVars:
@@ -412,14 +413,15 @@ def _gap_rules(m: cp_model.CpModel, pieces: list[PieceVars], g: RoomGeo, route: 
                skip: frozenset[frozenset[str]] | set[frozenset[str]] = frozenset()) -> None:
     """Two footprints in one room nearly touch (gaps at most ``grid`` both ways) or stand
     ``route`` apart on one axis; the same between a piece and the room's walls and fittings.
-    Pairs in ``skip`` (related pieces) may stand at any distance."""
+    Pairs in ``skip`` (related pieces) may stand at any distance; locked pieces are not held
+    to these rules among themselves nor against the walls (nothing is left to steer there)."""
     r = g.room.id
     here = [pv for pv in pieces if any(k[0] == r for k in pv.alts)]
     near = grid
     for i, p in enumerate(here):
         pxe, pye = p.ends(m)
         for q in here[i + 1:]:
-            if frozenset((p.spec.id, q.spec.id)) in skip:
+            if frozenset((p.spec.id, q.spec.id)) in skip or (p.locked and q.locked):
                 continue
             qxe, qye = q.ends(m)
             opts = [m.new_bool_var("") for _ in range(5)]
@@ -433,8 +435,8 @@ def _gap_rules(m: cp_model.CpModel, pieces: list[PieceVars], g: RoomGeo, route: 
             m.add(p.y <= qye + near).only_enforce_if(opts[4])
             enf = [_in_room_lit(m, p, r), _in_room_lit(m, q, r)]
             m.add_bool_or(opts).only_enforce_if(enf)
-        if any(rel == "beside_head" for rel, _ in p.spec.relations):
-            continue  # a nightstand's nook between the bed and a wall is no walkway
+        if p.locked or any(rel == "beside_head" for rel, _ in p.spec.relations):
+            continue  # fixed, or a nightstand's nook between the bed and a wall (no walkway)
         bx0, by0, bx1, by1 = g.bbox
         inr = _in_room_lit(m, p, r)
         for rect in (*g.fittings, *g.hard, (bx0 - 1, by0, bx0, by1), (bx1, by0, bx1 + 1, by1),
@@ -461,46 +463,3 @@ def _in_room_lit(m: cp_model.CpModel, pv: PieceVars, room: str) -> cp_model.IntV
     m.add_bool_or(lits).only_enforce_if(b)
     m.add_bool_and([lit.negated() for lit in lits]).only_enforce_if(b.negated())
     return b
-
-
-def decode(built: Built,
-           solver: cp_model.CpSolver | cp_model.CpSolverSolutionCallback) -> dict[str, Placement]:
-    """Placements of the built model's pieces in the solver's current solution."""
-    out = {}
-    for pv in built.pieces:
-        for (r, rot), lit in pv.alts.items():
-            if solver.value(lit):
-                out[pv.spec.id] = Placement(solver.value(pv.x), solver.value(pv.y), rot, r)
-    return out
-
-
-def hint(built: Built, where: dict[str, Placement]) -> None:
-    """Give CP-SAT ``where`` as the starting solution of the next run (positions and turns of
-    the pieces it names)."""
-    m = built.model
-    m.clear_hints()
-    for pv in built.pieces:
-        p = where.get(pv.spec.id)
-        if p is None:
-            continue
-        m.add_hint(pv.x, p.x)
-        m.add_hint(pv.y, p.y)
-        for (r, rot), lit in pv.alts.items():
-            m.add_hint(lit, int(r == p.room and rot == p.rotation))
-
-
-def differs(m: cp_model.CpModel, pv: PieceVars, where: Placement, move: int) -> list[cp_model.IntVar]:
-    """Literals whose disjunction says ``pv`` no longer stands as ``where`` says: another room
-    or turn (180-degree turns of symmetric pieces do not count), or moved ``move`` mm or more."""
-    out = []
-    same = [lit for (r, rot), lit in pv.alts.items()
-            if r == where.room and (rot == where.rotation or
-                                    (symmetric(pv.spec) and rot % 180 == where.rotation % 180))]
-    other = [lit for lit in pv.alts.values() if all(lit is not s for s in same)]
-    out += other
-    for var, v in ((pv.x, where.x), (pv.y, where.y)):
-        a, b = m.new_bool_var(""), m.new_bool_var("")
-        m.add(var >= v + move).only_enforce_if(a)
-        m.add(var <= v - move).only_enforce_if(b)
-        out += [a, b]
-    return out

@@ -7,6 +7,7 @@ groups. Decoding a solution uses only this index.
 
 from __future__ import annotations
 
+import functools
 import tomllib
 from dataclasses import dataclass, field
 from importlib import resources
@@ -19,8 +20,10 @@ from roomfit.solve.rooms import RoomGeo
 __all__ = ["PieceVars", "Built", "load_preferences", "wall_lovers", "symmetric"]
 
 
+@functools.cache
 def load_preferences() -> dict:
-    """The objective's weights from ``roomfit/data/preferences.toml``."""
+    """The objective's weights from ``roomfit/data/preferences.toml`` (read once: one dict
+    shared by every caller, read only)."""
     path = resources.files("roomfit") / "data" / "preferences.toml"
     return tomllib.loads(path.read_text(encoding="utf-8"))
 
@@ -77,6 +80,8 @@ class Built:
     groups: dict[str, cp_model.IntVar]
     has_objective: bool
     route: int
+    #: classes of interchangeable pieces kept in (x, y) order (``roomfit.solve.symmetry``)
+    classes: list[list[PieceVars]] = field(default_factory=list)
 
 
 def wall_lovers() -> set[str]:
