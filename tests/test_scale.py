@@ -29,7 +29,7 @@ from roomfit.solve.group import routines_of
 from roomfit.solve.model import build_model
 from roomfit.solve.rooms import room_geometry
 from roomfit.solve.search import SolveOptions, solve
-from roomfit.solve.solution import decode, hint
+from roomfit.solve.solution import decode, hint, pin
 from roomfit.solve.symmetry import canonical, equal_classes
 
 
@@ -44,15 +44,6 @@ def _parts(plan: Plan):
     rooms = [r.id for r in plan.rooms]
     geo = {r: room_geometry(plan, rules, plan.room(r), 50) for r in rooms}
     return rules, specs, rooms, geo
-
-
-def _fix(model: cp_model.CpModel, built, where) -> None:
-    for pv in built.pieces:
-        at = where[pv.spec.id]
-        model.add(pv.x == at.x)
-        model.add(pv.y == at.y)
-        for (room, rot), lit in pv.alts.items():
-            model.add(lit == int(room == at.room and rot == at.rotation))
 
 
 def _solve(model: cp_model.CpModel, seconds: float = 60.0, first: bool = False):
@@ -123,7 +114,7 @@ def test_ordering_equal_pieces_loses_no_layout() -> None:
         assert solver.solve(free.model) in (cp_model.FEASIBLE, cp_model.OPTIMAL)
         where = decode(free, solver)
         check = ordered.model.clone()
-        _fix(check, ordered, canonical(where, ordered.classes))
+        pin(check, ordered, where)
         assert _solve(check)[1] in (cp_model.FEASIBLE, cp_model.OPTIMAL)
 
 
