@@ -15,7 +15,10 @@ from shapely.geometry import Polygon
 from roomfit.audit.check import audit
 from roomfit.bench.baseline import AnnealOptions, anneal, layout_cost
 from roomfit.bench.instances import SHAPES, InstanceSpec, floor_demand, generate, wheelchair_set
-from roomfit.bench.run import BenchConfig, markdown, run, summarize
+from roomfit.bench.run import run
+from roomfit.bench.suite import BenchConfig
+from roomfit.bench.summary import summarize
+from roomfit.bench.tables import markdown
 from roomfit.plan.data import Layout, Piece, Placement, Plan, Room, RuleChoice
 from roomfit.plan.read import loads_plan
 from roomfit.plan.write import dumps_plan
@@ -158,7 +161,7 @@ def _row(name: str, tags: tuple[str, ...], solver: dict, baseline: dict | None =
 
 
 def test_group_rules_summed_by_hand() -> None:
-    from roomfit.bench.run import group_rules_summary
+    from roomfit.bench.summary import group_rules_summary
 
     good = {"passed": True, "group_met": 4, "group_total": 4}
     half = {"passed": True, "group_met": 2, "group_total": 4}
@@ -219,3 +222,128 @@ def test_certified_corpus_has_witnesses_the_audit_passes_and_the_solver_finds() 
     results = run(items, time_limit=20)
     assert results["summary"]["found_share"] == 1.0
     assert results["summary"]["wrong_impossible"] == 0 and results["summary"]["early_give_ups"] == 0
+
+
+def test_certified_corpus_written_as_plan_files_reads_back_and_the_witness_passes(tmp_path: Path) -> None:
+    # what another checkout's solver reads: the instance unplaced, the witness placed; the
+    # plan reader and the audit judge them, not the code that wrote them
+    from roomfit.bench.certified import corpus, write_corpus
+    from roomfit.plan.read import read_plan
+
+    items, _ = corpus(2, seed=3, pieces=3)
+    paths = write_corpus(items, tmp_path)
+    assert [p.name for p in paths] == [f"{c.name}.toml" for c in items]
+    for c, path in zip(items, paths, strict=True):
+        plan = read_plan(path)
+        assert plan.rules.set == c.rules.id
+        assert all(p.placement is None for p in plan.furniture)
+        witness = read_plan(path.with_name(f"{c.name}.witness.toml"))
+        assert audit(witness, rules_for(witness)).passed
+
+
+def test_the_baseline_on_the_certified_corpus_is_judged_by_the_audit() -> None:
+    from roomfit.bench.certified import baseline_rows, corpus, summarize
+
+    items, _ = corpus(2, seed=1, pieces=2)
+    rows = baseline_rows(items, time_limit=20)
+    assert [r["name"] for r in rows] == [c.name for c in items]
+    for r in rows:
+        # the baseline proves nothing: it never answers "impossible" nor gives up early
+        assert not r["wrong_impossible"] and not r["early_give_up"]
+        assert (r["first"] is not None) == r["found"]
+    s = summarize(rows, 20)
+    assert s["instances"] == 2 and s["found"] == sum(r["found"] for r in rows)
+
+
+def test_another_checkout_solves_the_same_corpus() -> None:
+    # this tree stands in for the other checkout: a child process with its own PYTHONPATH
+    # reads the written plans and solves them; a certified instance is found
+    from roomfit.bench.certified import corpus
+    from roomfit.bench.checkout import solve_in_tree
+
+    items, _ = corpus(1, seed=1, pieces=2)
+    root = Path(__file__).resolve().parent.parent
+    rows, commit = solve_in_tree(root, items, time_limit=20)
+    assert [r["name"] for r in rows] == [items[0].name]
+    assert rows[0]["found"] and rows[0]["first"] is not None and not rows[0]["wrong_impossible"]
+    assert commit is None or len(commit) == 40
+    with pytest.raises(FileNotFoundError, match="no roomfit checkout"):
+        solve_in_tree(root / "docs", items, time_limit=1)
+
+
+def test_carried_results_equal_the_recomputed_ones() -> None:
+    # what the summary table shows must not change when it reads the solver's results
+    # instead of judging each candidate again
+    from roomfit.bench.carried import cells, measure
+    from roomfit.solve.search import SolveOptions, solve
+
+    plan = generate(InstanceSpec(rooms=1, pieces=4, seed=0))
+    rules = rules_for(plan)
+    result = solve(plan, rules, SolveOptions(candidates=2, time_limit=20, seed=0))
+    assert result.candidates
+    for c in result.candidates:
+        assert c.audit is not None and c.routes is not None
+        assert cells(plan, rules, c, recompute=False) == cells(plan, rules, c, recompute=True)
+    row = measure("four pieces", plan, rules, time_limit=20)
+    assert row["candidates"] >= 1 and row["same_cells"] is True
+    assert {"before_s", "after_s", "draw_s"} <= set(row)
+
+
+def test_sawtooth_plan_has_the_corners_asked_and_routes_reach_every_box() -> None:
+    from roomfit.bench.vertices import measure, sawtooth_plan
+
+    plan = sawtooth_plan(1000)
+    assert len(plan.rooms[0].outline) == 1000
+    assert Polygon(plan.rooms[0].outline).is_valid  # shapely as the judge of a simple polygon
+    assert loads_plan(dumps_plan(plan)) == plan  # within the plan file's corner limit
+    row = measure(300)
+    assert row["vertices"] == 300
+    assert (row["trips"], row["reachable"]) == (5, 5) and row["audit_passed"]
+    assert row["detail"]["nodes"] > 0 and row["detail"]["parts"] == 1
+    with pytest.raises(ValueError, match="does not fit"):
+        sawtooth_plan(50_000)
+
+
+def test_one_room_series_reports_a_first_valid_layout() -> None:
+    from roomfit.bench.one_room import series, words
+
+    (row,) = series([4], time_limit=20, seed=0, say=lambda _: None)
+    assert row["pieces"] == 4 and row["first_valid_s"] is not None
+    assert words(row).startswith("first valid")
+    assert words({**row, "first_valid_s": None, "status": "timeout"}) == "none in 20 s (timeout)"
+
+
+def test_section_tables_have_the_rows_they_claim(tmp_path: Path) -> None:
+    from roomfit.bench.tables import section_tables, sections_text
+
+    out = tmp_path / "v.json"
+    data = run(BenchConfig(quick=True, only="vertices"), out, lambda _: None)
+    assert data["instances"] == [] and set(data["sections"]) == {"vertices"}
+    ((title, head, rows),) = section_tables(data["sections"])
+    assert [r[0] for r in rows] == ["1000", "10000"] and len(head) == len(rows[0])
+    assert all(r[6] == "5 of 5" for r in rows)
+    assert title in sections_text(data["sections"]) and title in markdown(data)
+    cert = {"time_limit_s": 10.0, "previous_commit": "a" * 40, "groups": [{
+        "pieces": 5, "tightness": "tight", "count": 2, "skipped": 0, "methods": {
+            m: {"rows": [], "summary": {"instances": 2, "found": k, "first_median": 0.5,
+                                        "first_p95": 0.9, "first_max": 0.9, "early_give_ups": 0,
+                                        "wrong_impossible": 0}}
+            for k, m in enumerate(("solver", "baseline", "previous"))}}]}
+    ((title, _, rows),) = section_tables({"certified": cert})
+    assert [r[:2] for r in rows] == [["solver (this tree)", "0 of 2"],
+                                     ["annealing baseline", "1 of 2"],
+                                     ["previous solver (aaaaaaa)", "2 of 2"]]
+
+
+def test_found_plot_steps_up_once_per_instance_found() -> None:
+    from roomfit.bench.plot import found_svg
+
+    svg = ET.fromstring(found_svg([("solver", [0.1, 1.0, None]), ("baseline", [None, None, 5.0])],
+                                  10.0, "t"))
+    ns = "{http://www.w3.org/2000/svg}"
+    lines = [p.get("points", "").split() for p in svg.iter(f"{ns}polyline")]
+    assert len(lines) == 2
+    ys = [[float(pt.split(",")[1]) for pt in pts] for pts in lines]
+    # start at 0 %, end at 2 of 3 and 1 of 3 of the plot's height (40 px top, 310 px tall)
+    assert ys[0][0] == pytest.approx(350) and ys[0][-1] == pytest.approx(350 - 310 * 2 / 3, abs=0.1)
+    assert ys[1][-1] == pytest.approx(350 - 310 / 3, abs=0.1)

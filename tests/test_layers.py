@@ -41,7 +41,9 @@ STAGE = {
     "present.draw": 7, "present.export": 7, "present.compare": 7,
     "present.report": 8,
     "bench": 9, "bench.instances": 9, "bench.baseline": 9, "bench.run": 9, "bench.__main__": 9,
-    "bench.certified": 9,
+    "bench.certified": 9, "bench.baseline_cost": 9, "bench.machine": 9, "bench.suite": 9,
+    "bench.measure": 9, "bench.summary": 9, "bench.plot": 9, "bench.tables": 9,
+    "bench.checkout": 9, "bench.one_room": 9, "bench.carried": 9, "bench.vertices": 9,
     "page": 9, "page_ifc": 9, "page_edit": 9, "page_trace": 9, "cli_args": 10, "cli": 10, "app": 12,
     # the page's parts beside app.py (they alone, with app.py, may use streamlit)
     "app_common": 11, "app_edit": 11, "app_trace": 11, "app_ifc": 11,

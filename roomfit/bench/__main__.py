@@ -1,4 +1,4 @@
-"""``python -m roomfit.bench``: see :mod:`roomfit.bench.run`."""
+"""``python -m roomfit.bench``: see :mod:`roomfit.bench.run` and ``--help``."""
 
 import sys
 

@@ -5,16 +5,8 @@ Carlo search (Metropolis acceptance under a falling temperature): moves translat
 one object or swap two; the cost adds up *accessibility* (the floor an object is used from
 stays free), *visibility* (what must be seen is not blocked), *pathway* (doors stay joined by
 walkable floor) and *pairwise* relations (a nightstand beside the bed, a sofa facing the TV),
-plus prior terms such as standing against a wall. We adapt each term to our rule sets:
-
-- accessibility -> use-zone intrusions (a piece on another piece's use zone, a zone outside
-  its room or on a fitting) and door swing / door approach intrusions;
-- visibility -> tall pieces in a window band (``window.band``), and the sofa facing the TV;
-- pathway -> on a 100 mm grid of each room, the free floor at least half the route width
-  (``route.width``) from any obstacle must join every door and use zone, and, where the rule
-  set asks for one, hold a turning space (``turning.size``);
-- prior terms -> overlap between pieces, floor outside the room, the distance from an
-  against-wall piece's back to the nearest wall; pairwise relations from the catalogue.
+plus prior terms such as standing against a wall. Each term adapted to our rule sets lives
+in :mod:`roomfit.bench.baseline_cost`; this module is the search.
 
 Moves: translate, rotate, swap two pieces of a room, snap to a wall (back flush with a random
 axis-aligned wall), and change room for pieces allowed in several. The search knows nothing
@@ -33,46 +25,16 @@ import math
 import random
 import time
 from collections.abc import Callable
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
-import numpy as np
-from scipy import ndimage
-from shapely import box, prepared
-from shapely.geometry import Point
-from shapely.ops import unary_union
-
-from roomfit.audit.geometry import (
-    door_shapes,
-    fixture_polygon,
-    fixture_zone,
-    room_polygons,
-    side_direction,
-    turned_size,
-    window_band,
-    zone_polygon,
-)
+from roomfit.audit.geometry import turned_size
+from roomfit.bench.baseline_cost import WEIGHTS, RoomFrame, State, layout_cost
 from roomfit.plan.data import Layout, Placement, Plan
 from roomfit.rules.catalog import PieceSpec, resolve_pieces
 from roomfit.rules.sets import RuleSet
 
 __all__ = ["AnnealOptions", "AnnealResult", "anneal", "layout_cost", "WEIGHTS"]
 
-#: Cost weights: areas in m2, lengths in m, counts as they are. Hard terms must all be zero for
-#: a state to be worth judging; soft terms only rank arrangements.
-WEIGHTS = {
-    "overlap": 20.0,        # per m2 of two footprints overlapping
-    "outside": 20.0,        # per m2 of footprint outside its room
-    "keepout": 10.0,        # per m2 on a door swing, door approach, fitting or its zone
-    "zone": 5.0,            # per m2 of a use zone on a footprint, a fitting or outside the room
-    "window": 5.0,          # per m2 of a tall piece within the window band
-    "wall": 4.0,            # per m from an against-wall piece's back to the nearest wall
-    "path": 1.0,            # per door or use zone not joined to the room's first door
-    "turning": 3.0,         # per m the largest free circle falls short of the turning space
-    "relation": 0.3,        # per m from a related piece's ideal spot (soft)
-}
-
-_GRID = 100  # mm, cell of the pathway grid
-_VIEW = 2500  # mm, sofa to TV distance the soft term aims at (common practice)
 _CYCLE_MOVES = 4000  # moves per cooling cycle when the search is bounded by moves
 
 
@@ -82,7 +44,8 @@ class AnnealOptions:
     geometrically from ``t_start`` to ``t_end`` over ``cycle`` seconds, then restarts from
     the best state found. ``max_iterations`` stops the search after that many moves and
     makes the schedule count moves instead of seconds, so a seed gives the same result on any
-    machine (the time limit still applies)."""
+    machine (the time limit still applies). ``stop_when_valid`` ends the search at the first
+    state the judge accepts (for a time-to-first-valid race)."""
 
     time_limit: float = 10.0
     seed: int = 0
@@ -91,6 +54,7 @@ class AnnealOptions:
     cycle: float = 3.0
     judge_interval: float = 0.05
     max_iterations: int | None = None
+    stop_when_valid: bool = False
 
 
 @dataclass(frozen=True)
@@ -116,272 +80,10 @@ class AnnealResult:
     trace: tuple[tuple[float, float], ...]
 
 
-Box = tuple[float, float, float, float]
 
+# -- moves ---------------------------------------------------------------------------------
 
-def _overlap(a: Box, b: Box) -> float:
-    w = min(a[2], b[2]) - max(a[0], b[0])
-    h = min(a[3], b[3]) - max(a[1], b[1])
-    return w * h if w > 0 and h > 0 else 0.0
-
-
-class _Room:
-    """Fixed geometry of one room, prepared for fast queries."""
-
-    def __init__(self, plan: Plan, rules: RuleSet, rid: str, poly, doors) -> None:
-        self.id = rid
-        self.poly = poly
-        self.prep = prepared.prep(poly)
-        self.boundary = poly.exterior
-        x0, y0, x1, y1 = poly.bounds
-        self.bounds = (x0, y0, x1, y1)
-        keep = []
-        self.door_points: list[tuple[float, float]] = []
-        for ds in doors:
-            if rid in ds.approach:
-                keep.append(ds.approach[rid])
-            if ds.swing is not None and ds.door.swings_into == rid:
-                keep.append(ds.swing)
-            if rid in ds.inward:
-                n = ds.inward[rid]
-                c = ds.opening.interpolate(0.5, normalized=True)
-                self.door_points.append((c.x + n[0] * 150, c.y + n[1] * 150))
-        fixtures = [f for f in plan.fixtures if f.room == rid]
-        fx = [fixture_polygon(f) for f in fixtures]
-        keep += fx + [z for z in (fixture_zone(f) for f in fixtures) if z is not None]
-        self.keepout = unary_union(keep) if keep else None
-        self.keep_prep = prepared.prep(self.keepout) if self.keepout is not None else None
-        self.fixtures = unary_union(fx) if fx else None
-        band = rules.mm("window.band")
-        bands = [window_band(plan, w, band) for w in plan.windows if w.room == rid and band > 0]
-        self.windows = unary_union(bands) if bands else None
-        self.walls = self._axis_walls(poly)
-        self.route_r = rules.mm("route.width") / 2
-        self.turn_r = rules.mm("turning.size") / 2
-        # pathway grid: cells whose centre is on the room's floor, less fittings
-        self.gx, self.gy = x0, y0
-        nx, ny = int(math.ceil((x1 - x0) / _GRID)), int(math.ceil((y1 - y0) / _GRID))
-        base = np.zeros((nx, ny), dtype=bool)
-        floor = poly.difference(self.fixtures) if self.fixtures is not None else poly
-        fprep = prepared.prep(floor)
-        for i in range(nx):
-            for j in range(ny):
-                base[i, j] = fprep.contains(Point(x0 + (i + 0.5) * _GRID, y0 + (j + 0.5) * _GRID))
-        self.base = base
-
-    @staticmethod
-    def _axis_walls(poly) -> list[tuple[tuple[float, float], tuple[float, float], tuple[int, int]]]:
-        """Axis-aligned edges with the outward normal (the way a piece's back faces)."""
-        pts = list(poly.exterior.coords)[:-1]
-        out = []
-        for k in range(len(pts)):
-            a, b = pts[k], pts[(k + 1) % len(pts)]
-            if a[0] != b[0] and a[1] != b[1]:
-                continue
-            ux, uy = (b[0] - a[0]), (b[1] - a[1])
-            ln = math.hypot(ux, uy)
-            nx, ny = -uy / ln, ux / ln  # left normal
-            mid = ((a[0] + b[0]) / 2 + nx * 5, (a[1] + b[1]) / 2 + ny * 5)
-            inward = poly.contains(Point(mid))
-            out_n = (int(round(-nx)), int(round(-ny))) if inward else (int(round(nx)), int(round(ny)))
-            out.append((a, b, out_n))
-        return out
-
-    def area_outside(self, b: Box) -> float:
-        g = box(*b)
-        if self.prep.contains(g):
-            return 0.0
-        return g.area - g.intersection(self.poly).area
-
-    def area_on(self, geom, prep, b: Box) -> float:
-        if geom is None:
-            return 0.0
-        g = box(*b)
-        if not prep.intersects(g):
-            return 0.0
-        return g.intersection(geom).area
-
-    def wall_distance(self, spec: PieceSpec, pl: Placement, fb: Box) -> float:
-        dx, dy = side_direction("back", pl.rotation)
-        cx, cy = (fb[0] + fb[2]) / 2, (fb[1] + fb[3]) / 2
-        hx, hy = (fb[2] - fb[0]) / 2, (fb[3] - fb[1]) / 2
-        return self.boundary.distance(Point(cx + dx * hx, cy + dy * hy))
-
-
-def _cells(room: _Room, b: Box) -> tuple[int, int, int, int]:
-    i0 = max(0, int(math.floor((b[0] - room.gx) / _GRID)))
-    j0 = max(0, int(math.floor((b[1] - room.gy) / _GRID)))
-    i1 = min(room.base.shape[0], int(math.ceil((b[2] - room.gx) / _GRID)))
-    j1 = min(room.base.shape[1], int(math.ceil((b[3] - room.gy) / _GRID)))
-    return i0, j0, i1, j1
-
-
-def _path_cost(room: _Room, foots: list[Box], zones: list[Box]) -> tuple[float, float]:
-    """(unjoined targets, turning shortfall in m) on the room's pathway grid."""
-    free = room.base.copy()
-    for b in foots:
-        i0, j0, i1, j1 = _cells(room, b)
-        free[i0:i1, j0:j1] = False
-    dist = ndimage.distance_transform_edt(np.pad(free, 1))[1:-1, 1:-1] * _GRID
-    walk = dist >= room.route_r
-    labels, n = ndimage.label(walk)
-    if n == 0:
-        return float(len(room.door_points) + len(zones)), room.turn_r / 1000
-
-    def comps_near(x: float, y: float, reach: float) -> set[int]:
-        b = (x - reach, y - reach, x + reach, y + reach)
-        i0, j0, i1, j1 = _cells(room, b)
-        return set(np.unique(labels[i0:i1, j0:j1]).tolist()) - {0}
-
-    near = [comps_near(x, y, room.route_r + _GRID) for x, y in room.door_points]
-    main = next(iter(near[0]), None) if near and near[0] else None
-    if main is None:
-        counts = np.bincount(labels.ravel())
-        counts[0] = 0
-        main = int(counts.argmax())
-    missing = sum(1 for s in near if main not in s)
-    joined = labels == main
-    half = room.route_r / 2
-    for z in zones:
-        i0, j0, i1, j1 = _cells(room, (z[0] - half, z[1] - half, z[2] + half, z[3] + half))
-        if not joined[i0:i1, j0:j1].any():
-            missing += 1
-    short = 0.0
-    if room.turn_r > 0:
-        best = float(dist[joined].max()) if joined.any() else 0.0
-        short = max(0.0, room.turn_r - best) / 1000
-    return float(missing), short
-
-
-class _State:
-    """The search state and its cost, kept up to date move by move."""
-
-    def __init__(self, plan: Plan, rules: RuleSet, specs: tuple[PieceSpec, ...]) -> None:
-        polys = room_polygons(plan)
-        doors = door_shapes(plan, rules)
-        self.rooms = {rid: _Room(plan, rules, rid, p, doors) for rid, p in polys.items()}
-        self.specs = specs
-        self.n = len(specs)
-        self.place: list[Placement] = [Placement(0, 0, 0, s.rooms[0]) for s in specs]
-        self.cat = [s.category for s in specs]
-        self.unary = [0.0] * self.n
-        self.pair = np.zeros((self.n, self.n))
-        self.path = {rid: 0.0 for rid in self.rooms}
-        self.soft = 0.0
-        self._cache: dict[int, tuple[Placement, tuple[Box, list[Box]]]] = {}
-
-    # geometry of one piece -------------------------------------------------------------
-    def boxes(self, i: int) -> tuple[Box, list[Box]]:
-        """Footprint and use-zone boxes of piece ``i`` where it stands now (cached)."""
-        pl = self.place[i]
-        hit = self._cache.get(i)
-        if hit is not None and hit[0] == pl:
-            return hit[1]
-        s = self.specs[i]
-        w, d = turned_size(s.width, s.depth, pl.rotation)
-        fb = (pl.x, pl.y, pl.x + w, pl.y + d)
-        zs = [tuple(zone_polygon(s, pl, z).bounds) for z in s.zones if z.depth > 0]
-        self._cache[i] = (pl, (fb, zs))
-        return fb, zs
-
-    def unary_cost(self, i: int) -> float:
-        s, pl = self.specs[i], self.place[i]
-        room = self.rooms[pl.room]
-        fb, zs = self.boxes(i)
-        c = WEIGHTS["outside"] * room.area_outside(fb) / 1e6
-        c += WEIGHTS["keepout"] * room.area_on(room.keepout, room.keep_prep, fb) / 1e6
-        for z in zs:
-            zone_bad = room.area_outside(z)
-            if room.fixtures is not None:
-                zone_bad += box(*z).intersection(room.fixtures).area
-            c += WEIGHTS["zone"] * zone_bad / 1e6
-        if s.tall and room.windows is not None:
-            c += WEIGHTS["window"] * box(*fb).intersection(room.windows).area / 1e6
-        if s.against_wall:
-            c += WEIGHTS["wall"] * room.wall_distance(s, pl, fb) / 1000
-        return c
-
-    def pair_cost(self, i: int, j: int) -> float:
-        if self.place[i].room != self.place[j].room:
-            return 0.0
-        fi, zi = self.boxes(i)
-        fj, zj = self.boxes(j)
-        c = WEIGHTS["overlap"] * _overlap(fi, fj) / 1e6
-        c += WEIGHTS["zone"] * (sum(_overlap(z, fj) for z in zi) + sum(_overlap(z, fi) for z in zj)) / 1e6
-        return c
-
-    def room_path(self, rid: str) -> float:
-        ids = [k for k in range(self.n) if self.place[k].room == rid]
-        foots, zones = [], []
-        for k in ids:
-            fb, zs = self.boxes(k)
-            foots.append(fb)
-            zones += zs
-        missing, short = _path_cost(self.rooms[rid], foots, zones)
-        return WEIGHTS["path"] * missing + WEIGHTS["turning"] * short
-
-    def relation_cost(self) -> float:
-        """Soft pairwise relations (catalogue): nightstand beside the bed head, a piece in front
-        of its target, the sofa facing the TV at a viewing distance."""
-        total = 0.0
-        for i, s in enumerate(self.specs):
-            for rel, target in s.relations:
-                js = [j for j in range(self.n) if self.cat[j] == target
-                      and self.place[j].room == self.place[i].room and j != i]
-                if js:
-                    total += min(self._relation(rel, i, j) for j in js)
-        return WEIGHTS["relation"] * total / 1000
-
-    def _centre(self, i: int) -> tuple[float, float]:
-        fb, _ = self.boxes(i)
-        return (fb[0] + fb[2]) / 2, (fb[1] + fb[3]) / 2
-
-    def _relation(self, rel: str, i: int, j: int) -> float:
-        ci, cj = self._centre(i), self._centre(j)
-        sj, pj = self.specs[j], self.place[j]
-        if rel == "beside_head":
-            bx, by = side_direction("back", pj.rotation)
-            lx, ly = side_direction("left", pj.rotation)
-            head = (cj[0] + bx * sj.depth / 2, cj[1] + by * sj.depth / 2)
-            off = sj.width / 2 + self.specs[i].width / 2
-            d2 = self.specs[i].depth / 2
-            spots = [(head[0] + sg * lx * off - bx * d2, head[1] + sg * ly * off - by * d2)
-                     for sg in (1, -1)]
-            return min(math.dist(ci, p) for p in spots)
-        if rel == "in_front":
-            fx, fy = side_direction("front", pj.rotation)
-            gap = sj.depth / 2 + 450 + self.specs[i].depth / 2
-            return math.dist(ci, (cj[0] + fx * gap, cj[1] + fy * gap))
-        if rel == "facing":
-            fx, fy = side_direction("front", self.place[i].rotation)
-            vx, vy = cj[0] - ci[0], cj[1] - ci[1]
-            dist = math.hypot(vx, vy) or 1.0
-            return 1000 * (1 - (fx * vx + fy * vy) / dist) + abs(dist - _VIEW)
-        return 0.0
-
-    # whole-state cost ------------------------------------------------------------------
-    def full(self) -> None:
-        self.unary = [self.unary_cost(i) for i in range(self.n)]
-        self.pair = np.zeros((self.n, self.n))
-        for i in range(self.n):
-            for j in range(i + 1, self.n):
-                self.pair[i, j] = self.pair[j, i] = self.pair_cost(i, j)
-        self.path = {rid: self.room_path(rid) for rid in self.rooms}
-        self.soft = self.relation_cost()
-
-    @property
-    def hard(self) -> float:
-        return sum(self.unary) + float(self.pair.sum()) / 2 + sum(self.path.values())
-
-    @property
-    def cost(self) -> float:
-        return self.hard + self.soft
-
-    def layout(self) -> Layout:
-        return tuple((s.id, p) for s, p in zip(self.specs, self.place, strict=True))
-
-
-def _random_placement(room: _Room, spec: PieceSpec, rng: random.Random) -> Placement:
+def _random_placement(room: RoomFrame, spec: PieceSpec, rng: random.Random) -> Placement:
     rot = rng.choice((0, 90, 180, 270))
     w, d = turned_size(spec.width, spec.depth, rot)
     x0, y0, x1, y1 = room.bounds
@@ -390,7 +92,7 @@ def _random_placement(room: _Room, spec: PieceSpec, rng: random.Random) -> Place
     return Placement(x, y, rot, room.id)
 
 
-def _snap(room: _Room, spec: PieceSpec, rng: random.Random) -> Placement | None:
+def _snap(room: RoomFrame, spec: PieceSpec, rng: random.Random) -> Placement | None:
     """Back flush against a random axis-aligned wall, at a random spot along it."""
     if not room.walls:
         return None
@@ -412,17 +114,156 @@ def _snap(room: _Room, spec: PieceSpec, rng: random.Random) -> Placement | None:
     return Placement(x, y, rot, room.id)
 
 
-def layout_cost(plan: Plan, rules: RuleSet, layout: Layout) -> tuple[float, float]:
-    """(hard, soft) cost of an arrangement under the baseline's terms and :data:`WEIGHTS`.
+def _swap(st: State, movable: list[int], i: int, rng: random.Random) -> list[int] | None:
+    """Piece ``i`` and a random other piece of its room change places (centre for centre)."""
+    pl, spec = st.place[i], st.specs[i]
+    mates = [j for j in movable if j != i and st.place[j].room == pl.room]
+    if not mates:
+        return None
+    j = rng.choice(mates)
+    (ax, ay), (bx, by) = st.centre(i), st.centre(j)
+    pj = st.place[j]
+    wi, di = turned_size(spec.width, spec.depth, pl.rotation)
+    wj, dj = turned_size(st.specs[j].width, st.specs[j].depth, pj.rotation)
+    st.place[i] = Placement(int(bx - wi / 2), int(by - di / 2), pl.rotation, pl.room)
+    st.place[j] = Placement(int(ax - wj / 2), int(ay - dj / 2), pj.rotation, pj.room)
+    return [i, j]
 
-    Every piece of ``plan`` needs a placement, in ``layout`` or in the plan.
-    """
-    specs = resolve_pieces(plan, rules)
-    st = _State(plan, rules, specs)
-    where = dict(plan.with_layout(layout).layout)
-    st.place = [where[s.id] for s in specs]
-    st.full()
-    return st.hard, st.soft
+
+def _propose(st: State, plan: Plan, movable: list[int], heat: float,
+             rng: random.Random) -> list[int] | None:
+    """Move one random piece in place (translate 50 %, rotate 15 %, swap 10 %, snap to a wall
+    20 %, change room 5 %); ``heat`` is the temperature over the starting one. The pieces
+    moved, or None when the move drawn does not apply."""
+    i = rng.choice(movable)
+    spec, pl = st.specs[i], st.place[i]
+    kind = rng.random()
+    if kind < 0.5:
+        step = max(20.0, 1500.0 * math.sqrt(heat))
+        st.place[i] = Placement(int(pl.x + rng.gauss(0, step)), int(pl.y + rng.gauss(0, step)),
+                                pl.rotation, pl.room)
+    elif kind < 0.65:
+        rot = rng.choice((0, 90, 180, 270))
+        w0, d0 = turned_size(spec.width, spec.depth, pl.rotation)
+        w1, d1 = turned_size(spec.width, spec.depth, rot)
+        st.place[i] = Placement(int(pl.x + (w0 - w1) / 2), int(pl.y + (d0 - d1) / 2), rot, pl.room)
+    elif kind < 0.75:
+        return _swap(st, movable, i, rng)
+    elif kind < 0.95:
+        snapped = _snap(st.rooms[pl.room], spec, rng)
+        if snapped is None:
+            return None
+        st.place[i] = snapped
+    else:
+        rid = rng.choice(plan.furniture[i].rooms)
+        st.place[i] = _random_placement(st.rooms[rid], spec, rng)
+    return [i]
+
+
+def _metropolis(st: State, saved: list[Placement], touched: list[int], temp: float,
+                rng: random.Random) -> bool:
+    """Cost the move just made and accept it by the Metropolis rule (delta <= -T ln u), or
+    put everything back. The pathway term can fall at most to zero, so a move whose other
+    terms already exceed the threshold is rejected before its pathway grid is computed."""
+    old_cost = st.cost
+    rooms_touched = {saved[k].room for k in touched} | {st.place[k].room for k in touched}
+    old_unary = [st.unary[k] for k in touched]
+    old_rows = st.pair[touched].copy()
+    old_path = {r: st.path[r] for r in rooms_touched}
+    old_soft = st.soft
+    for k in touched:
+        st.unary[k] = st.unary_cost(k)
+        for m in range(st.n):
+            if m != k:
+                st.pair[k, m] = st.pair[m, k] = st.pair_cost(k, m)
+    st.soft = st.relation_cost()
+    threshold = -temp * math.log(1.0 - rng.random())
+    accept = st.cost - old_cost - sum(old_path.values()) <= threshold
+    if accept:
+        for r in rooms_touched:
+            st.path[r] = st.room_path(r)
+        accept = st.cost - old_cost <= threshold
+    if not accept:
+        st.place = saved
+        for k, u in zip(touched, old_unary, strict=True):
+            st.unary[k] = u
+        for row, k in enumerate(touched):
+            st.pair[k, :] = old_rows[row]
+            st.pair[:, k] = old_rows[row]
+        st.path.update(old_path)
+        st.soft = old_soft
+    return accept
+
+
+# -- the search ----------------------------------------------------------------------------
+
+@dataclass
+class _Search:
+    """The bookkeeping of one run: best state, best judged-valid state, counters, clock."""
+
+    st: State
+    opt: AnnealOptions
+    judge: Callable[[Layout], bool] | None
+    progress: Callable[[str], None] | None
+    start: float = field(default_factory=time.perf_counter)
+    best: tuple[float, list[Placement]] = (math.inf, [])
+    valid_best: tuple[float, list[Placement]] | None = None
+    time_to_valid: float | None = None
+    trace: list[tuple[float, float]] = field(default_factory=list)
+    seen: set[tuple[Placement, ...]] = field(default_factory=set)
+    judged: int = 0
+    last_judge: float = -1.0
+    it: int = 0
+    acc: int = 0
+    cycle_start: float = 0.0
+
+    def temperature(self, now: float) -> float:
+        """The temperature of this move; at the end of a cycle, reheat from the best state."""
+        opt, by_moves = self.opt, self.opt.max_iterations is not None
+        if by_moves:  # a schedule by moves, reproducible
+            frac = min(1.0, (self.it - self.cycle_start) / _CYCLE_MOVES)
+        else:
+            frac = min(1.0, (now - self.cycle_start) / max(opt.cycle, 1e-6))
+        if frac >= 1.0:
+            self.cycle_start = self.it if by_moves else now
+            self.st.place = list(self.best[1])
+            self.st.full()
+            frac = 0.0
+        return opt.t_start * (opt.t_end / opt.t_start) ** frac
+
+    def ask_judge(self, now: float) -> bool:
+        """Put a state with no hard cost to the judge (at most every ``judge_interval``
+        seconds, each state once, only when its soft cost beats the best valid one); True
+        when the search may stop (a valid state with nothing left to improve)."""
+        st, opt = self.st, self.opt
+        if self.judge is None or st.hard >= 1e-9 or now - self.last_judge < opt.judge_interval:
+            return False
+        key = tuple(st.place)
+        if key in self.seen or (self.valid_best is not None and st.soft >= self.valid_best[0] - 1e-9):
+            return False
+        self.seen.add(key)
+        self.judged += 1
+        self.last_judge = now
+        if not self.judge(st.layout()):
+            return False
+        if self.time_to_valid is None:
+            self.time_to_valid = time.perf_counter() - self.start
+            if self.progress:
+                self.progress(f"baseline: first valid arrangement after {self.time_to_valid:.2f} s")
+        self.valid_best = (st.soft, list(st.place))
+        return st.soft < 1e-9 or opt.stop_when_valid
+
+    def result(self) -> AnnealResult:
+        """Settle on the best valid state (else the cheapest) and report."""
+        elapsed = time.perf_counter() - self.start
+        st = self.st
+        st.place = self.valid_best[1] if self.valid_best is not None else self.best[1]
+        st.full()
+        return AnnealResult(
+            layout=st.layout(), cost=st.cost, hard=st.hard, soft=st.soft,
+            judged_valid=(self.valid_best is not None) if self.judge is not None else None,
+            time_to_valid=self.time_to_valid, iterations=self.it, accepted=self.acc,
+            judged=self.judged, elapsed=elapsed, trace=tuple(self.trace))
 
 
 def anneal(
@@ -435,12 +276,13 @@ def anneal(
     """Search an arrangement of ``plan``'s unlocked pieces by simulated annealing.
 
     Locked pieces stay where the plan puts them. Runs for ``options.time_limit`` seconds;
-    the search stops early only once the judge has accepted a state with no soft cost left.
+    the search stops early only once the judge has accepted a state with no soft cost left
+    (or any state, with ``stop_when_valid``).
     """
     opt = options or AnnealOptions()
     rng = random.Random(opt.seed)
     specs = resolve_pieces(plan, rules)
-    st = _State(plan, rules, specs)
+    st = State(plan, rules, specs)
     movable = []
     for i, p in enumerate(plan.furniture):
         if p.locked and p.placement is not None:
@@ -449,134 +291,25 @@ def anneal(
             st.place[i] = _random_placement(st.rooms[p.rooms[0]], specs[i], rng)
             movable.append(i)
     st.full()
-    start = time.perf_counter()
-    best = (st.cost, list(st.place), st.hard, st.soft)
-    valid_best: tuple[float, list[Placement]] | None = None
-    time_to_valid = None
-    trace = [(0.0, best[0])]
-    judged, seen = 0, set()
-    last_judge = -1.0
-    it = acc = 0
-    cycle_start = 0.0
     if not movable:
         opt = AnnealOptions(time_limit=0.0, max_iterations=0)
+    run = _Search(st, opt, judge, progress)
+    run.best = (st.cost, list(st.place))
+    run.trace.append((0.0, st.cost))
     while True:
-        now = time.perf_counter() - start
-        if now >= opt.time_limit or (opt.max_iterations is not None and it >= opt.max_iterations):
+        now = time.perf_counter() - run.start
+        if now >= opt.time_limit or (opt.max_iterations is not None and run.it >= opt.max_iterations):
             break
-        if opt.max_iterations is not None:  # a schedule by moves, reproducible
-            frac = min(1.0, (it - cycle_start) / _CYCLE_MOVES)
-        else:
-            frac = min(1.0, (now - cycle_start) / max(opt.cycle, 1e-6))
-        if frac >= 1.0:  # reheat from the best state
-            cycle_start = it if opt.max_iterations is not None else now
-            st.place = list(best[1])
-            st.full()
-            frac = 0.0
-        temp = opt.t_start * (opt.t_end / opt.t_start) ** frac
-        it += 1
-        old_cost = st.cost
+        temp = run.temperature(now)
+        run.it += 1
         saved = list(st.place)
-        i = rng.choice(movable)
-        spec = specs[i]
-        kind = rng.random()
-        touched = [i]
-        pl = st.place[i]
-        room = st.rooms[pl.room]
-        if kind < 0.5:
-            step = max(20.0, 1500.0 * math.sqrt(temp / opt.t_start))
-            st.place[i] = Placement(int(pl.x + rng.gauss(0, step)), int(pl.y + rng.gauss(0, step)),
-                                    pl.rotation, pl.room)
-        elif kind < 0.65:
-            rot = rng.choice((0, 90, 180, 270))
-            w0, d0 = turned_size(spec.width, spec.depth, pl.rotation)
-            w1, d1 = turned_size(spec.width, spec.depth, rot)
-            st.place[i] = Placement(int(pl.x + (w0 - w1) / 2), int(pl.y + (d0 - d1) / 2), rot, pl.room)
-        elif kind < 0.75:
-            mates = [j for j in movable if j != i and st.place[j].room == pl.room]
-            if not mates:
-                continue
-            j = rng.choice(mates)
-            (ax, ay), (bx, by) = st._centre(i), st._centre(j)
-            pj = st.place[j]
-            wi, di = turned_size(spec.width, spec.depth, pl.rotation)
-            wj, dj = turned_size(specs[j].width, specs[j].depth, pj.rotation)
-            st.place[i] = Placement(int(bx - wi / 2), int(by - di / 2), pl.rotation, pl.room)
-            st.place[j] = Placement(int(ax - wj / 2), int(ay - dj / 2), pj.rotation, pj.room)
-            touched.append(j)
-        elif kind < 0.95:
-            snapped = _snap(room, spec, rng)
-            if snapped is None:
-                continue
-            st.place[i] = snapped
-        else:
-            rid = rng.choice(plan.furniture[i].rooms)
-            st.place[i] = _random_placement(st.rooms[rid], spec, rng)
-        rooms_touched = {saved[k].room for k in touched} | {st.place[k].room for k in touched}
-        old_unary = [st.unary[k] for k in touched]
-        old_rows = st.pair[touched].copy()
-        old_path = {r: st.path[r] for r in rooms_touched}
-        old_soft = st.soft
-        for k in touched:
-            st.unary[k] = st.unary_cost(k)
-            for m in range(st.n):
-                if m != k:
-                    st.pair[k, m] = st.pair[m, k] = st.pair_cost(k, m)
-        st.soft = st.relation_cost()
-        # Metropolis: accept when delta <= -T ln u. The pathway term can fall at most to zero,
-        # so a move whose other terms already exceed that threshold is rejected unseen.
-        threshold = -temp * math.log(1.0 - rng.random())
-        lower = st.cost - old_cost - sum(old_path.values())
-        accept = lower <= threshold
-        if accept:
-            for r in rooms_touched:
-                st.path[r] = st.room_path(r)
-            accept = st.cost - old_cost <= threshold
-        if accept:
-            acc += 1
-        else:
-            st.place = saved
-            for k, u in zip(touched, old_unary, strict=True):
-                st.unary[k] = u
-            for row, k in enumerate(touched):
-                st.pair[k, :] = old_rows[row]
-                st.pair[:, k] = old_rows[row]
-            st.path.update(old_path)
-            st.soft = old_soft
+        touched = _propose(st, plan, movable, temp / opt.t_start, rng)
+        if touched is None or not _metropolis(st, saved, touched, temp, rng):
             continue
-        if st.cost < best[0] - 1e-12:
-            best = (st.cost, list(st.place), st.hard, st.soft)
-            trace.append((now, st.cost))
-        if judge is not None and st.hard < 1e-9 and now - last_judge >= opt.judge_interval:
-            key = tuple(st.place)
-            if key not in seen and (valid_best is None or st.soft < valid_best[0] - 1e-9):
-                seen.add(key)
-                judged += 1
-                last_judge = now
-                if judge(st.layout()):
-                    if time_to_valid is None:
-                        time_to_valid = time.perf_counter() - start
-                        if progress:
-                            progress(f"baseline: first valid arrangement after {time_to_valid:.2f} s")
-                    valid_best = (st.soft, list(st.place))
-                    if st.soft < 1e-9:
-                        break
-    elapsed = time.perf_counter() - start
-    if valid_best is not None:
-        st.place = valid_best[1]
-    else:
-        st.place = best[1]
-    st.full()
-    return AnnealResult(
-        layout=st.layout(),
-        cost=st.cost,
-        hard=st.hard,
-        soft=st.soft,
-        judged_valid=(valid_best is not None) if judge is not None else None,
-        time_to_valid=time_to_valid,
-        iterations=it,
-        accepted=acc,
-        judged=judged,
-        elapsed=elapsed,
-        trace=tuple(trace),
-    )
+        run.acc += 1
+        if st.cost < run.best[0] - 1e-12:
+            run.best = (st.cost, list(st.place))
+            run.trace.append((now, st.cost))
+        if run.ask_judge(now):
+            break
+    return run.result()

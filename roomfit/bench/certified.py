@@ -10,12 +10,15 @@ obstacles, the last accepted layout passes as a whole; it is audited once more t
 is the *witness*. Instances whose furniture could not be placed in the tries allowed are left
 out (counted). The solver never sees the witness.
 
-Reported: the share found within the limit, median and 95th-percentile time to the first
-valid layout, and *early give-ups* (any answer other than found before the limit without a
-proof; "impossible" on a certified instance is a wrong answer and counted apart).
+Reported for each method: the share found within the limit, median and 95th-percentile
+time to the first valid layout, and *early give-ups* (any answer other than found before 90 %
+of the limit without a proof; "impossible" on a certified instance is a wrong answer and
+counted apart). Methods: the solver of this tree; with ``--baseline`` the annealing baseline
+(stopping at its first arrangement the audit passes); with ``--solver-tree DIR`` the solver
+of another checkout (``roomfit.bench.checkout``), on the same corpus.
 
 ``python -m roomfit.bench.certified [--count N] [--pieces K] [--tightness loose|tight]
-[--time-limit S] [--out FILE] [--write DIR]``
+[--time-limit S] [--seed K] [--baseline] [--solver-tree DIR] [--out FILE] [--write DIR]``
 """
 
 from __future__ import annotations
@@ -33,11 +36,13 @@ from typing import Any
 from roomfit.audit.check import audit
 from roomfit.audit.geometry import room_polygon, side_direction
 from roomfit.bench.instances import SHAPES, InstanceSpec, generate
-from roomfit.plan.data import Placement, Plan
-from roomfit.rules.catalog import resolve_pieces
+from roomfit.files import atomic_write
+from roomfit.plan.data import Layout, Placement, Plan, RuleChoice
+from roomfit.rules.catalog import PieceSpec, resolve_pieces
 from roomfit.rules.sets import RuleSet, load_ruleset
 
-__all__ = ["Certified", "SETS", "certify", "corpus", "run", "main"]
+__all__ = ["Certified", "SETS", "certify", "corpus", "write_corpus", "solver_rows", "baseline_rows",
+           "outcome_row", "summarize", "run", "main"]
 
 #: The everyday set and every bundled wheelchair set.
 SETS = ("everyday", "ada-2010", "a117-2017", "iso-21542", "uk-m4-3", "din-18040-r")
@@ -55,7 +60,7 @@ class Certified:
     witness: tuple[tuple[str, Placement], ...]
 
 
-def _random_spot(plan: Plan, spec, rng: random.Random) -> Placement:
+def _random_spot(plan: Plan, spec: PieceSpec, rng: random.Random) -> Placement:
     """A random (room, turn, position) for ``spec``, flush with a wall when it needs one."""
     room = plan.room(rng.choice(spec.rooms))
     x0, y0, x1, y1 = (int(v) for v in room_polygon(room).bounds)
@@ -117,6 +122,21 @@ def corpus(count: int, seed: int = 0, pieces: int = 3,
     return out, skipped
 
 
+def write_corpus(items: list[Certified], folder: Path) -> list[Path]:
+    """Each instance as a plan file (furniture unplaced, its rule set named) beside its
+    witness (``NAME.witness.toml``); the instance files, in corpus order."""
+    from roomfit.plan.write import write_plan
+
+    folder.mkdir(parents=True, exist_ok=True)
+    paths = []
+    for c in items:
+        plan = replace(c.plan, rules=RuleChoice(c.rules.id))
+        write_plan(plan, folder / f"{c.name}.toml")
+        write_plan(plan.with_layout(c.witness), folder / f"{c.name}.witness.toml")
+        paths.append(folder / f"{c.name}.toml")
+    return paths
+
+
 def _pct(xs: list[float], q: float) -> float | None:
     if not xs:
         return None
@@ -124,63 +144,117 @@ def _pct(xs: list[float], q: float) -> float | None:
     return xs[min(len(xs) - 1, round(q * (len(xs) - 1)))]
 
 
-def run(items: list[Certified], time_limit: float, seed: int = 0) -> dict[str, Any]:
-    """Solve every instance from scratch; rows and the summary (see the module docstring)."""
+def outcome_row(name: str, rules: str, status: str, found: bool, elapsed: float,
+                first: float | None, time_limit: float) -> dict[str, Any]:
+    """One instance's outcome for any method, classified: an answer without a layout before
+    90 % of the limit is an early give-up unless it claims a proof; "impossible" is wrong."""
+    return {"name": name, "rules": rules, "status": status, "found": found,
+            "elapsed": round(elapsed, 2), "first": None if first is None else round(first, 3),
+            "early_give_up": not found and status != "impossible" and elapsed < 0.9 * time_limit,
+            "wrong_impossible": status == "impossible"}
+
+
+def solver_rows(items: list[Certified], time_limit: float, seed: int = 0) -> list[dict[str, Any]]:
+    """Solve every instance from scratch with this tree's solver (one candidate)."""
     from roomfit.solve.search import SolveOptions, solve
 
-    rows: list[dict[str, Any]] = []
+    rows = []
     for c in items:
         started = time.monotonic()
         result = solve(c.plan, c.rules, SolveOptions(candidates=1, time_limit=time_limit,
                                                      seed=seed))
-        elapsed = time.monotonic() - started
-        rows.append({"name": c.name, "rules": c.rules.id, "status": str(result.status),
-                     "found": bool(result.candidates), "elapsed": round(elapsed, 2),
-                     "first": result.stats.time_to_first,
-                     "early_give_up": not result.candidates and result.status != "impossible"
-                     and elapsed < 0.9 * time_limit,
-                     "wrong_impossible": result.status == "impossible"})
+        found = bool(result.candidates)
+        rows.append(outcome_row(c.name, c.rules.id, str(result.status), found,
+                                time.monotonic() - started,
+                                result.stats.time_to_first if found else None, time_limit))
+    return rows
+
+
+def baseline_rows(items: list[Certified], time_limit: float, seed: int = 0) -> list[dict[str, Any]]:
+    """The annealing baseline on every instance, judged by the audit, stopping at its first
+    arrangement the audit passes; "found" only when the returned arrangement passes again."""
+    from roomfit.bench.baseline import AnnealOptions, anneal
+
+    rows = []
+    for c in items:
+        def judge(layout: Layout, c: Certified = c) -> bool:
+            return audit(c.plan.with_layout(layout), c.rules).passed
+
+        res = anneal(c.plan, c.rules, AnnealOptions(time_limit=time_limit, seed=seed,
+                                                     stop_when_valid=True), judge=judge)
+        found = audit(c.plan.with_layout(res.layout), c.rules).passed
+        # the baseline proves nothing and gives up only at its limit
+        rows.append(outcome_row(c.name, c.rules.id, "found" if found else "none", found,
+                                res.elapsed, res.time_to_valid if found else None, time_limit))
+    return rows
+
+
+def summarize(rows: list[dict[str, Any]], time_limit: float) -> dict[str, Any]:
+    """Share found, median and 95th-percentile first valid (over the found ones), early
+    give-ups and wrong "impossible" answers."""
     firsts = [r["first"] for r in rows if r["first"] is not None]
-    summary = {"instances": len(rows), "found_share": (sum(r["found"] for r in rows) / len(rows)
-                                                       if rows else None),
-               "first_median": statistics.median(firsts) if firsts else None,
-               "first_p95": _pct(firsts, 0.95),
-               "early_give_ups": sum(r["early_give_up"] for r in rows),
-               "wrong_impossible": sum(r["wrong_impossible"] for r in rows),
-               "time_limit": time_limit}
-    return {"rows": rows, "summary": summary}
+    return {"instances": len(rows),
+            "found": sum(r["found"] for r in rows),
+            "found_share": round(sum(r["found"] for r in rows) / len(rows), 3) if rows else None,
+            "first_median": round(statistics.median(firsts), 3) if firsts else None,
+            "first_p95": _pct(firsts, 0.95),
+            "first_max": max(firsts, default=None),
+            "early_give_ups": sum(r["early_give_up"] for r in rows),
+            "wrong_impossible": sum(r["wrong_impossible"] for r in rows),
+            "time_limit": time_limit}
+
+
+def run(items: list[Certified], time_limit: float, seed: int = 0) -> dict[str, Any]:
+    """This tree's solver on every instance: its rows and summary."""
+    rows = solver_rows(items, time_limit, seed)
+    return {"rows": rows, "summary": summarize(rows, time_limit)}
+
+
+def _print(label: str, rows: list[dict[str, Any]], summary: dict[str, Any]) -> None:
+    print(f"-- {label}")
+    for r in rows:
+        print(f"{r['name']:<40} {r['rules']:<12} {r['status']:<10} first "
+              f"{r['first'] if r['first'] is not None else '-'}  ({r['elapsed']} s)")
+    print(json.dumps(summary, indent=2))
 
 
 def main(argv: Sequence[str] | None = None) -> int:
-    """Build the corpus, solve it, print the summary; ``--write DIR`` also writes each
-    instance as a plan file (furniture unplaced) beside its witness, for other solvers."""
-    p = argparse.ArgumentParser(prog="python -m roomfit.bench.certified")
-    p.add_argument("--count", type=int, default=12)
-    p.add_argument("--pieces", type=int, default=3)
+    """Build the corpus, solve it with each method asked for, print the summaries."""
+    p = argparse.ArgumentParser(prog="python -m roomfit.bench.certified",
+                                description="A certified-feasible corpus (a witness layout "
+                                "that passes the audit is placed first), solved from scratch.")
+    p.add_argument("--count", type=int, default=12, help="instances (default 12)")
+    p.add_argument("--pieces", type=int, default=3, help="pieces per room (default 3)")
     p.add_argument("--tightness", choices=("loose", "tight"), default="loose")
-    p.add_argument("--time-limit", type=float, default=20.0)
-    p.add_argument("--seed", type=int, default=0)
+    p.add_argument("--time-limit", type=float, default=20.0, help="seconds per instance and method")
+    p.add_argument("--seed", type=int, default=0, help="corpus and solver seed (default 0)")
+    p.add_argument("--baseline", action="store_true", help="also run the annealing baseline")
+    p.add_argument("--solver-tree", type=Path, default=None, metavar="DIR",
+                   help="also solve the corpus with the roomfit checkout in DIR (another commit)")
     p.add_argument("--out", type=Path, default=None, help="JSON results")
-    p.add_argument("--write", type=Path, default=None, help="folder for the instances")
+    p.add_argument("--write", type=Path, default=None,
+                   help="folder for the instances and their witnesses as plan files")
     args = p.parse_args(argv)
     items, skipped = corpus(args.count, args.seed, args.pieces, args.tightness)
     if args.write is not None:
-        from roomfit.plan.data import RuleChoice
-        from roomfit.plan.write import write_plan
+        write_corpus(items, args.write)
+    results: dict[str, Any] = {"corpus": {"count": len(items), "skipped": skipped,
+                                          "pieces": args.pieces, "tightness": args.tightness,
+                                          "seed": args.seed}}
+    methods = {"solver": solver_rows(items, args.time_limit, args.seed)}
+    if args.baseline:
+        methods["baseline"] = baseline_rows(items, args.time_limit, args.seed)
+    if args.solver_tree is not None:
+        from roomfit.bench.checkout import solve_in_tree
 
-        args.write.mkdir(parents=True, exist_ok=True)
-        for c in items:
-            plan = replace(c.plan, rules=RuleChoice(c.rules.id))
-            write_plan(plan, args.write / f"{c.name}.toml")
-            write_plan(plan.with_layout(c.witness), args.write / f"{c.name}.witness.toml")
-    results = run(items, args.time_limit, args.seed)
-    results["summary"]["skipped"] = skipped
-    for r in results["rows"]:
-        print(f"{r['name']:<40} {r['rules']:<12} {r['status']:<10} first "
-              f"{r['first'] if r['first'] is not None else '-'}  ({r['elapsed']} s)")
-    print(json.dumps(results["summary"], indent=2))
+        rows, commit = solve_in_tree(args.solver_tree, items, args.time_limit, args.seed)
+        methods["previous"] = rows
+        results["previous_commit"] = commit
+    for label, rows in methods.items():
+        results[label] = {"rows": rows, "summary": summarize(rows, args.time_limit)}
+        _print(label, rows, results[label]["summary"])
     if args.out is not None:
-        args.out.write_text(json.dumps(results, indent=2), encoding="utf-8")
+        atomic_write(args.out, json.dumps(results, indent=1) + "\n")
     return 0
 
 
