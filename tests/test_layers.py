@@ -32,7 +32,7 @@ STAGE = {
     "audit.alcove": 4,
     "audit.check": 4, "audit.routes": 4,
     "solve": 5, "solve.rooms": 5, "solve.vars": 5, "solve.groups": 5, "solve.terms": 5,
-    "solve.model": 5, "solve.symmetry": 5, "solve.solution": 5, "solve.construct": 5,
+    "solve.model": 5, "solve.symmetry": 5, "solve.solution": 5, "solve.construct": 5, "solve.bound": 5,
     "solve.cuts": 5,
     "solve.building": 5, "solve.explain": 5, "solve.group": 6,
     "solve.search": 6,
@@ -53,7 +53,8 @@ FORBIDDEN = {
     *((s, f"plan.{m}") for s in ("solve.search", "solve.model", "solve.explain")
       for m in ("fields", "openings", "read", "write")),
     *((f"solve.{s}", "audit.check")
-      for s in ("model", "rooms", "vars", "terms", "cuts", "symmetry", "solution", "construct")),
+      for s in ("model", "rooms", "vars", "terms", "cuts", "symmetry", "solution", "construct",
+                "bound")),
     ("audit.check", "present.draw"), ("audit.routes", "present.draw"),
 }
 

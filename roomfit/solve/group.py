@@ -22,6 +22,7 @@ from roomfit.errors import Problem, RoomfitError
 from roomfit.plan.data import Placement, Plan, Trip
 from roomfit.rules.catalog import PieceSpec
 from roomfit.rules.sets import RuleSet
+from roomfit.solve.bound import lower_bound
 from roomfit.solve.building import BuildingFinding, key
 from roomfit.solve.construct import FROM_PIECES, construct
 from roomfit.solve.cuts import SoundCut, sound_cut
@@ -218,6 +219,7 @@ class GroupSearch:
         # a layout taken at once (quick) and not yet improved: the next run starts from it
         self.provisional: Found | None = None
         self.hinted = False  # the model holds the warm start's hint
+        self.floor: float | None = None  # proven lower bound of the objective (pieces apart)
         self.warm: dict[str, Placement] = {}  # the layout built up unit by unit
 
     def valid_at(self, seconds: float) -> None:
@@ -315,6 +317,23 @@ class GroupSearch:
         return frozenset(b.finding.room for b in self.building
                          if b.finding.rule == "turning.space" and b.finding.room)
 
+    def prove_bound(self, end: float) -> None:
+        """Prove a lower bound of the group's objective with pieces apart
+        (``roomfit.solve.bound``) by ``end``, and raise every layout's bound to it (a layout
+        at the bound is optimal)."""
+        if not self.found or self.floor is not None or all(f.optimal for f in self.found):
+            return
+        floor = lower_bound(self.plan, self.rules, self.specs, self.rooms, self.options.grid,
+                            self.geo, routines_of(self.plan), end - time.monotonic(),
+                            self._no_turning(), self.options.seed)
+        self.counters.add("solves")
+        if floor is None:
+            return
+        self.floor = floor
+        for f in self.found:
+            f.bound = max(f.bound, floor)
+            f.optimal = f.optimal or f.objective <= floor
+
     def _improve(self, wanted: int, budget_end: float) -> None:
         """Search again from the layout taken at once in the first phase, with its fair share
         of the time (one of ``wanted``); the best checker-passing layout replaces it. If the
@@ -388,12 +407,13 @@ class GroupSearch:
                 return "time"  # a restart would lose the search done so far
             optimal = status == cp_model.OPTIMAL
             bound = solver.best_objective_bound if built.has_objective else 0.0
+            bound = max(bound, self.floor or 0.0)
             accepted = None
             # best first; the last (best) solution may be proven optimal
             for k, (obj, where) in enumerate(list(reversed(seen.solutions))[:_AUDITS_PER_SOLVE]):
                 result = seen.verdicts.get(id(where)) or self._judge(where)
                 if result.passed:
-                    accepted = Found(where, obj, bound, optimal and k == 0)
+                    accepted = Found(where, obj, bound, (optimal and k == 0) or obj <= bound)
                     break
                 self._cut(built, movable, where, result)
             if accepted is None:  # a layout the callback saw pass, before the best ones

@@ -112,6 +112,7 @@ class _Ctx:
     assume: bool
     relaxed: bool
     no_turning: frozenset[str]
+    apart: bool = False
     groups: dict[str, cp_model.IntVar] = field(default_factory=dict)
 
     def group(self, name: str) -> cp_model.IntVar | None:
@@ -137,6 +138,7 @@ def build_model(
     routines: tuple[Trip, ...] | None = None,
     extra_terms: Callable[[cp_model.CpModel, list[PieceVars]], list] | None = None,
     no_turning: frozenset[str] = frozenset(),
+    apart: bool = False,
 ) -> Built:
     """Build the placement model for ``specs`` in ``rooms``.
 
@@ -149,11 +151,14 @@ def build_model(
     ``extra_terms(model, pieces)`` (functional groups) more linear terms to minimise. Locked
     pieces keep their plan placement. ``routines`` are the daily trips the routine term uses
     (default: the plan's own). Rooms in ``no_turning`` get no turning space (the bare room
-    cannot hold one: a building finding, furnished around).
+    cannot hold one: a building finding, furnished around). ``apart`` lets pieces overlap
+    each other and drops the turning space (each piece keeps to the room, the fittings and
+    the floor kept clear on its own): with ``relaxed``, a relaxation whose optimum bounds
+    the objective of every layout the audit passes (``roomfit.solve.bound``).
     """
     m = cp_model.CpModel()
     geo = geo or {r: room_geometry(plan, rules, plan.room(r), grid) for r in rooms}
-    ctx = _Ctx(m, plan, rules, geo, grid, assume, relaxed, no_turning)
+    ctx = _Ctx(m, plan, rules, geo, grid, assume, relaxed, no_turning, apart)
     route = math.ceil(rules.get("route.width").exact_mm) + ROUTE_MARGIN
     pieces = [_piece_vars(ctx, spec) for spec in specs]
     prefs = load_preferences()
@@ -166,7 +171,9 @@ def build_model(
                           m.new_optional_fixed_size_interval_var(pv.y, d, lit, "")))
     related = _related_pairs(pieces)
     for r, g in geo.items():
-        _floor_rules(ctx, g, fp[r], strengthen)
+        for own in ([[f for f in fp[r] if f[0] is pv] for pv in pieces] if apart else [fp[r]]):
+            if own or not apart:
+                _floor_rules(ctx, g, own, strengthen)
         _zone_rules(ctx, g, pieces, fp[r])
         if strengthen:
             _gap_rules(m, pieces, g, route, grid, related)
@@ -273,7 +280,7 @@ def _floor_rules(ctx: _Ctx, g: RoomGeo, fp: list, strengthen: bool) -> None:
     m = ctx.m
     feet = [(ix, iy) for _, _, ix, iy in fp]
     boxes = feet + [_fixed_box(m, rect) for rect in g.hard]
-    turning = ctx.rules.mm("turning.size")
+    turning = 0 if ctx.apart else ctx.rules.mm("turning.size")
     if turning > 0 and g.room.id not in ctx.no_turning:
         boxes += _turning_boxes(m, g, turning, ctx.rules.text("turning.shape"), ctx.relaxed,
                                 ctx.group(f"turning.{g.room.id}"))
@@ -328,7 +335,7 @@ def _zone_rules(ctx: _Ctx, g: RoomGeo, pieces: list[PieceVars], fp: list) -> Non
                 zb.append((m.new_optional_fixed_size_interval_var(sx, wx, pres, ""),
                            m.new_optional_fixed_size_interval_var(sy, wy, pres, "")))
         if zb:
-            others = [(ix, iy) for q, _, ix, iy in fp if q is not pv]
+            others = [(ix, iy) for q, _, ix, iy in fp if q is not pv and not ctx.apart]
             _no_overlap(m, zb + others + hard_boxes)
 
 

@@ -14,7 +14,15 @@ from enum import StrEnum
 
 from roomfit.solve.search import SolveResult, Status
 
-__all__ = ["Level", "Outcome", "describe"]
+__all__ = ["Level", "Outcome", "describe", "GAP_WORDS"]
+
+#: What a candidate's gap means (the CLI's "gap" column and the page's figure).
+GAP_WORDS = ("Gap: the objective (lower is better) of an arrangement that is not proven the "
+             "best may be lowered by at most that share of it. The bound it is measured against "
+             "is proven: the same preferences scored with the pieces allowed to overlap each "
+             "other (or the solver's own bound when that is higher), so the best arrangement "
+             "lies between the bound and the objective; a large gap often means an unmet "
+             "preference (a functional group, a relation) that a longer search may still meet.")
 
 
 class Level(StrEnum):
@@ -51,6 +59,8 @@ def describe(result: SolveResult, time_limit: float) -> Outcome:
     fixes = tuple(f"Try: {f}" for f in ex.fixes) if ex is not None else ()
     fixes += tuple(f"Advice: {a}" for a in ex.advice) if ex is not None else ()
     plural = "s" if n != 1 else ""
+    if n and not all(c.optimal for c in result.candidates):
+        notes += (GAP_WORDS,)
     if result.status in (Status.FOUND, Status.OPTIMAL) and n and building:
         return Outcome(Level.WARNING, f"{n} arrangement{plural} found around {len(building)} building "
                        f"finding{'s' if len(building) != 1 else ''} that no furniture can cure: "
