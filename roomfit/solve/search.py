@@ -166,7 +166,7 @@ class SolveResult:
     were asked (or why none), and the ``building`` findings the candidates were furnished
     around (the bare apartment fails them; such a result is not a compliant flat)."""
 
-    status: Status | str
+    status: Status
     candidates: tuple[Candidate, ...]
     explanation: Explanation | None
     stats: SolveStats
