@@ -142,16 +142,16 @@ def check_zones(ctx: Floor) -> list[Finding]:
                                room=pc.placement.room,
                                where=point(blocked if ids else zp), outline=outline(zp)))
     for f in ctx.plan.fixtures:
-        zp = geo.fixture_zone(f)
-        if zp is None:
+        fz = geo.fixture_zone(f)
+        if fz is None:
             continue
-        ids, blocked = _blockers(zp, pieces)
+        ids, blocked = _blockers(fz, pieces)
         ok = not ids
         msg = (f"the zone of fitting {f.id} is clear" if ok else
                f"the zone of fitting {f.id} is blocked by {', '.join(ids)}")
         out.append(Finding("zone.clear", ok, msg, measured=round(blocked.area, 1),
                            required=0.0, pieces=(f.id, *ids), room=f.room,
-                           where=point(blocked if ids else zp), outline=outline(zp)))
+                           where=point(blocked if ids else fz), outline=outline(fz)))
     return out
 
 
@@ -233,10 +233,11 @@ def _leaf_through_wall(ctx: Floor, ds: geo.DoorShape) -> list[Finding]:
     it opens into (a 900 mm leaf into a 600 mm deep cupboard): it cannot open fully. Across
     a thick wall the leaf is taken as hung at the far face, so the wall itself does not count."""
     d = ds.door
-    room = ctx.rooms.get(d.swings_into or "")
-    if ds.swing is None or room is None:
+    into = d.swings_into
+    room = ctx.rooms.get(into) if into is not None else None
+    if ds.swing is None or into is None or room is None:
         return []
-    swing = _far_face(ctx, ds, d.swings_into, ds.swing)
+    swing = _far_face(ctx, ds, into, ds.swing)
     through = swing.difference(room)
     if through.area <= TOUCH_MM2:
         return []

@@ -213,7 +213,7 @@ def narrowest(space: Passages, points: Sequence[XY],
     pts = samples(points, SAMPLE_STEP_MM)
     blockers = space.blocker_union
     near = shapely.shortest_line(shapely.points(pts), blockers)
-    lower = 2 * shapely.length(near)
+    lower = 2 * np.asarray(shapely.length(near), dtype=float)
     ends = shapely.get_coordinates(shapely.get_point(near, 1))
     best, where = known if known is not None else (float(WIDTH_CAP_MM), tuple(pts[0]))
     for k in np.argsort(lower):

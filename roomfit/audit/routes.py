@@ -257,8 +257,9 @@ def _build_space(floor: Floor, st: Walkway, pas: Passages) -> _Space:
         if len(verts) >= 2:
             arr = np.asarray(verts)
             ii, jj = np.triu_indices(len(verts), k=1)
-            ok = shapely.covers(space.cover[i],
-                                shapely.linestrings(np.stack([arr[ii], arr[jj]], axis=1)))
+            ok = np.asarray(shapely.covers(
+                space.cover[i], shapely.linestrings(np.stack([arr[ii], arr[jj]], axis=1))),
+                dtype=bool)
             lengths = np.hypot(*(arr[ii] - arr[jj]).T)
             g.add_weighted_edges_from((keys[a], keys[b], float(w)) for a, b, w, keep
                                       in zip(ii, jj, lengths, ok, strict=True) if keep)

@@ -75,7 +75,7 @@ def _raster(free: BaseGeometry, cell: float) -> tuple[np.ndarray, float, float]:
     if inner.is_empty:
         return np.zeros((ny, nx), bool), x0, y0
     shapely.prepare(inner)
-    return shapely.contains_xy(inner, gx, gy), x0, y0
+    return np.asarray(shapely.contains_xy(inner, gx, gy), dtype=bool), x0, y0
 
 
 def _rect_free(sat: np.ndarray, h: int, w: int) -> np.ndarray:
