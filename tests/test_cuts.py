@@ -199,3 +199,46 @@ def test_every_fix_shown_is_confirmed_by_a_solve_and_a_false_one_is_dropped() ->
     wrong = Explanation("x", ("wr",), (), (), (Fix("without the wardrobe it fits", "wr"),))
     checked = _confirmed(plan, rules, SolveOptions(candidates=1, time_limit=5), wrong, _Clock(5))
     assert checked.fixes == () and checked.trials == ()
+
+
+def test_a_sound_cut_from_a_routine_trip_removes_only_failing_layouts() -> None:
+    # A trip to a shelf (a piece without use zones, so no route.reach target of its own)
+    # through a 500 mm gap between two blocks 1000 mm deep: the everyday route is 30 in
+    # (762 mm) with no narrower stretch allowed, so only route.trip fails. Its measured
+    # widest way makes the cut larger than the single layout (the same walkway measure as
+    # route.reach), and every layout with the blocks moved less than the cut also fails.
+    from roomfit.plan.data import OUTSIDE, Door, Leaf, Piece, Plan, Room, RuleChoice
+
+    def block(pid: str, x: int, y: int, w: int, d: int) -> Piece:
+        return Piece(pid, "custom", ("r",), width=w, depth=d, height=800,
+                     placement=Placement(x, y, 0, "r"))
+
+    room = Room("r", "Room", "living", ((0, 0), (4000, 0), (4000, 5000), (0, 5000)))
+    door = Door("entry", ("r", OUTSIDE), (2000, 0), 1000, Leaf.NONE)
+    shelf = block("shelf", 1500, 4600, 1000, 400)
+    plan = Plan("gap", (room,), (door,), (), (), (shelf,), RuleChoice("everyday", ()),
+                (Trip("entrance", "shelf", 1.0, "To the shelf"),))
+    rules = rules_for(plan)
+    where = {"a": Placement(0, 2000, 0, "r"), "b": Placement(2000, 2000, 0, "r")}
+
+    def judged(at: dict[str, Placement]):
+        pieces = (shelf, block("a", 0, 0, 1500, 1000), block("b", 0, 0, 2000, 1000))
+        return audit(replace(plan, furniture=pieces).with_layout(
+            (("shelf", shelf.placement), *at.items())), rules, widths=False)
+
+    verdict = judged(where)
+    assert [f.rule for f in verdict.failures] == ["route.trip"]
+    trip = verdict.failures[0]
+    # the widest way is the gap, within the walkway's 0.5 mm slack (docs/audit.md)
+    assert trip.measured is not None and 495 <= trip.measured <= 500.5
+    cut = sound_cut(["a", "b"], where, verdict.failures, lambda keep: verdict,
+                    rules.mm("route.pinch_width"), rules.text("turning.shape"))
+    assert cut.move == math.floor((762 - trip.measured - MARGIN["route.trip"]) / DIVISOR)
+    assert cut.move > 30
+    near = cut.move - 1
+    for da in (-near, 0, near):   # the gap widens most when a goes west and b goes east
+        for db in (-near, 0, near):
+            for dy in (-near, near):
+                moved = {"a": Placement(0 + min(da, 0), 2000 + dy, 0, "r"),
+                         "b": Placement(2000 + max(db, 0), 2000 - dy, 0, "r")}
+                assert not judged(moved).passed, moved

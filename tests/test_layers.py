@@ -29,7 +29,7 @@ STAGE = {
     "plan.floor_items": 3, "plan.floor": 3, "plan.ifc_import": 3,
     "audit.walkway": 4, "audit.pinch": 4, "audit.routines": 4, "audit.findings": 4,
     "audit.passage": 4, "audit.clearances": 4, "audit.turning": 4, "audit.circulation": 4,
-    "audit.alcove": 4,
+    "audit.alcove": 4, "audit.places": 4, "audit.bottleneck": 4, "audit.visibility": 4,
     "audit.check": 4, "audit.routes": 4,
     "solve": 5, "solve.rooms": 5, "solve.vars": 5, "solve.groups": 5, "solve.terms": 5,
     "solve.model": 5, "solve.symmetry": 5, "solve.solution": 5, "solve.construct": 5, "solve.bound": 5,

@@ -367,3 +367,38 @@ def test_paths_for_drawing_keep_labels_and_night():
     assert [p.label for p in paths] == ["In to WC", "Sit"]
     assert [p.night for p in paths] == [True, False]
     assert paths[0].points == s.trips[0].points
+
+
+# --- where a trip ends: one rule for the scorer and the solver's model ---------------------
+
+
+def test_a_trip_to_a_room_ends_at_the_centre_of_its_largest_circle():
+    # An L-shaped room (two 1200 mm wide arms, 5000 mm long) with a 1000 x 1000 mm fitting
+    # in the corner: its centroid lies in no arm. The trip end is the centre of the largest
+    # circle in the floor less the fitting; a brute-force search on a 20 mm grid (shapely
+    # distances, the independent judge) finds no point farther from the floor's edge.
+    from roomfit.audit.places import end_point
+    from roomfit.solve.terms import _fixed_place
+
+    ell = Room("r", "r", "living", ((0, 0), (5000, 0), (5000, 1200), (1200, 1200),
+                                    (1200, 5000), (0, 5000)))
+    post = Fixture("post", "r", "cupboard", "Post", ((0, 0), (1000, 0), (1000, 1000), (0, 1000)),
+                   2000)
+    doors = [Door("in", ("r", "outside"), (5000, 600), 900, Leaf.NONE)]
+    plan = _plan([ell], doors=doors, fixtures=[post])
+    floor = shapely.Polygon(ell.outline).difference(shapely.Polygon(post.outline))
+    assert not floor.covers(floor.centroid)
+    (x, y), rooms = end_point(plan, "r")
+    assert rooms == ("r",) and floor.covers(shapely.Point(x, y))
+    gx, gy = np.meshgrid(np.arange(0, 5001, 20.0), np.arange(0, 5001, 20.0))
+    grid = shapely.points(gx.ravel(), gy.ravel())
+    inside = grid[shapely.covers(floor, grid)]
+    best = shapely.distance(floor.exterior, inside).max()
+    assert floor.exterior.distance(shapely.Point(x, y)) >= best - 1   # largest circle, 1 mm
+    # the scorer's route to the room ends there, and the solver's routine term aims there
+    t = route(plan, EVERYDAY, "entrance", "r")
+    assert t.reachable and math.dist(t.points[-1], (x, y)) < 1e-6
+    assert _fixed_place(plan, "r") == ((round(x), round(y)), ("r",))
+    # a door ends at its centre, a fitting's zone at its middle, for both
+    assert end_point(plan, "entrance") == ((5000.0, 600.0), ("r", "outside"))
+    assert _fixed_place(plan, "post") == ((500, 500), ("r",))

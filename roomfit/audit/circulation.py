@@ -18,22 +18,12 @@ from dataclasses import dataclass
 
 from shapely import MultiPoint, Point
 
+from roomfit.audit.bottleneck import bottleneck, widest
 from roomfit.audit.findings import Finding, fmt_mm, outline, point, source_of
 from roomfit.audit.pinch import pinch_walkway
+from roomfit.audit.places import Target, joined, place_target, reached, targets
 from roomfit.audit.routines import routines_for
-from roomfit.audit.walkway import (
-    TOUCH_MM2,
-    Floor,
-    Target,
-    bottleneck,
-    joined,
-    place_target,
-    reached,
-    room_at,
-    standing,
-    targets,
-    widest,
-)
+from roomfit.audit.walkway import TOUCH_MM2, Floor, room_at, standing
 from roomfit.plan.data import Trip
 
 __all__ = ["place_words", "check_routes", "trip_finding", "check_trips"]

@@ -22,7 +22,8 @@ from shapely.geometry.base import BaseGeometry
 from shapely.ops import unary_union
 
 from roomfit.audit.findings import Finding, fmt_mm, outline, source_of
-from roomfit.audit.walkway import QUAD_SEGS, TOUCH_MM, WIDTH_TOL, Floor, Target, polys
+from roomfit.audit.places import Target
+from roomfit.audit.walkway import QUAD_SEGS, TOUCH_MM, WIDTH_TOL, Floor, polys
 
 __all__ = ["RASTER_CELL", "TurningResult", "turning_space", "check_turning"]
 

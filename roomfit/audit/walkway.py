@@ -33,13 +33,12 @@ Every verdict about circulation (the audit's ``route.reach``, ``route.width`` an
   route width standing square to the side covers it out to a square corner, where a disc
   would leave the corner itself untouched.
 - **Width along a path**: the widest way between two places is the largest width at which
-  they are joined (bisection to :data:`WIDTH_STEP`); the bottleneck is where the two sides
-  come closest at the first width that parts them. It is always below the width asked
-  when the way is missing.
+- **Places** and how they are served are in :mod:`roomfit.audit.places`; the widest way
+  between two places and where it breaks in :mod:`roomfit.audit.bottleneck`.
 
 References: T. Lozano-Perez, "Spatial planning: a configuration space approach", IEEE
 Trans. Computers C-32 (1983); J. Serra, *Image Analysis and Mathematical Morphology*
-(1982) for erosion and opening; 2010 ADA Standards §305.6, §403.5.1.
+(1982) for erosion and opening; 2010 ADA Standards §403.5.1.
 
 Worked example (checked by hand): an empty 3000 x 3000 mm room shrunk for a 760 mm route
 is the square inset by (760 - 0.5) / 2 = 379.75 mm, 2240.5 mm a side:
@@ -52,19 +51,21 @@ is the square inset by (760 - 0.5) / 2 = 379.75 mm, 2240.5 mm a side:
 from __future__ import annotations
 
 import math
-from collections.abc import Callable
 from dataclasses import dataclass, field
-from enum import StrEnum
+from typing import TYPE_CHECKING
 
 import shapely
 from shapely import LineString, Point, Polygon
 from shapely.geometry.base import BaseGeometry
-from shapely.ops import nearest_points, unary_union
+from shapely.ops import unary_union
 
 from roomfit.audit import geometry as geo
 from roomfit.plan.data import OUTSIDE, Placement, Plan
 from roomfit.rules.catalog import PieceSpec, resolve_pieces
 from roomfit.rules.sets import RuleSet
+
+if TYPE_CHECKING:  # the floor caches its places (built by roomfit.audit.places)
+    from roomfit.audit.places import Target
 
 __all__ = [
     "QUAD_SEGS",
@@ -75,8 +76,6 @@ __all__ = [
     "WIDTH_TOL",
     "Floor",
     "Placed",
-    "PlaceKind",
-    "Target",
     "Walkway",
     "polys",
     "floor_of",
@@ -85,13 +84,6 @@ __all__ = [
     "shrink",
     "mouth",
     "walkway",
-    "targets",
-    "place_target",
-    "roots_in",
-    "reached",
-    "joined",
-    "widest",
-    "bottleneck",
     "room_at",
 ]
 
@@ -132,33 +124,6 @@ class Placed:
     shape: Polygon
 
 
-class PlaceKind(StrEnum):
-    """How a place is served by the walkway (see the module docstring)."""
-
-    DOOR = "door"
-    ZONE = "zone"
-    POINT = "point"
-    BESIDE = "beside"   # a piece or fitting without a zone: served by the parts beside it
-
-
-@dataclass(frozen=True)
-class Target:
-    """A place a person must get to: ``geom`` in ``room``.
-
-    ``depth``: how far (mm) a body centre can go into it (half a door's width, a turning
-    space's clearance, 0 for a point); ``door``: the door of a door side; ``kind``: how it
-    is served; ``ids``: the pieces, fittings or doors it belongs to.
-    """
-
-    label: str
-    room: str
-    geom: BaseGeometry
-    depth: float
-    ids: tuple[str, ...]
-    door: str | None = None
-    kind: PlaceKind = PlaceKind.POINT
-    key: int = -1   # a plan zone's index into the floor's zones, -1 for any other place
-
 
 @dataclass
 class Floor:
@@ -176,8 +141,8 @@ class Floor:
     bases: dict[tuple[str, str], tuple[float, float]] = field(default_factory=dict)
     pinch_longest: float = 0.0   # longest narrow stretch kept by the pinch walkway (mm)
     simplified_mm: float = 0.0   # largest tolerance a free floor was simplified by (mm)
-    _zones: list[Target] | None = None
-    _links: tuple[list[list[LineString]], list[tuple[int, int]]] | None = None
+    zones: list[Target] | None = None   # the use and fitting zones (roomfit.audit.places)
+    zone_links: tuple[list[list[LineString]], list[tuple[int, int]]] | None = None
 
 
 def floor_of(plan: Plan, rules: RuleSet) -> Floor:
@@ -253,7 +218,7 @@ class Walkway:
     mouths: dict[tuple[str, str], tuple[Point, list[int]]]
     slack: float = 0.0   # the floor's simplification allowance (mm): see MAX_VERTICES
     _swept: dict[tuple[str, int], BaseGeometry] = field(default_factory=dict)
-    _zone_roots: dict[int, set[int]] | None = None
+    zone_roots: dict[int, set[int]] | None = None   # per zone, the roots serving it
 
     def tol(self, depth: float) -> float:
         return max(0.0, self.width / 2 - depth) + TOUCH_MM + self.slack
@@ -339,259 +304,3 @@ def walkway(floor: Floor, width: float, floors: dict[str, BaseGeometry] | None =
     state.start = {state.root[i] for i in start}
     floor.cache[ck] = state
     return state
-
-
-def _zone_target(label: str, room: str, zone: BaseGeometry, ids: tuple[str, ...],
-                 key: int) -> Target:
-    return Target(label, room, zone, 0.0, ids, kind=PlaceKind.ZONE, key=key)
-
-
-def targets(floor: Floor) -> list[Target]:
-    """Every place the audit asks to reach: both sides of each door, each use zone (the
-    part inside its room) and each fitting's zone."""
-    out: list[Target] = []
-    for ds in floor.doors:
-        for rid in ds.door.rooms:
-            if rid == OUTSIDE or rid not in floor.rooms:
-                continue
-            out.append(Target(f"the {rid} side of door {ds.door.id}", rid, Point(ds.door.at),
-                              ds.door.width / 2, (ds.door.id,), ds.door.id, PlaceKind.DOOR))
-    return out + _zones(floor)
-
-
-def _zones(floor: Floor) -> list[Target]:
-    if floor._zones is not None:
-        return floor._zones
-    out: list[Target] = []
-    for pid, pc in floor.placed.items():
-        room = floor.rooms.get(pc.placement.room)
-        if room is None:
-            continue
-        for z, zp in geo.use_zones(pc.spec, pc.placement):
-            g = zp.intersection(room)
-            out.append(_zone_target(f"the {z.side} zone of {pid}", pc.placement.room,
-                                    g if polys(g) else zp, (pid,), len(out)))
-    for f in floor.plan.fixtures:
-        fz = geo.fixture_zone(f)
-        if fz is not None and f.room in floor.rooms:
-            out.append(_zone_target(f"the zone of fitting {f.id}", f.room, fz, (f.id,),
-                                    len(out)))
-    floor._zones = out
-    return out
-
-
-def _sides(g: BaseGeometry) -> list[LineString]:
-    """The straight sides of a zone's outline (of its largest polygon)."""
-    ps = polys(g)
-    if not ps:
-        return []
-    ring = list(max(ps, key=lambda q: q.area).exterior.coords)
-    return [LineString([a, b]) for a, b in zip(ring, ring[1:], strict=False)
-            if math.dist(a, b) > TOUCH_MM]
-
-
-def _clear(floor: Floor, t: Target) -> bool:
-    """A zone free at its own size: inside its room and free of footprints and fittings
-    other than its owner's."""
-    room = floor.rooms.get(t.room)
-    if room is None or t.geom.difference(room).area > TOUCH_MM2:
-        return False
-    solid = [pc.shape for pid, pc in standing(floor) if pid not in t.ids]
-    solid += [g for fid, g in floor.fixtures.items() if fid not in t.ids]
-    return all(t.geom.intersection(s).area <= TOUCH_MM2 for s in solid if t.geom.intersects(s))
-
-
-def _zone_links(floor: Floor) -> tuple[list[list[LineString]], list[tuple[int, int]]]:
-    """The sides of each zone, and the pairs (k, m) where one full side of zone k adjoins
-    the clear zone m (the same for every width: computed once per floor)."""
-    if floor._links is None:
-        zones = _zones(floor)
-        sides = [_sides(z.geom) for z in zones]
-        clear = [k for k, z in enumerate(zones) if _clear(floor, z)]
-        grown = {k: zones[k].geom.buffer(TOUCH_MM) for k in clear}
-        links = [(k, m) for k, z in enumerate(zones) for m in clear
-                 if m != k and zones[m].room == z.room
-                 and any(grown[m].covers(s) for s in sides[k])]
-        floor._links = (sides, links)
-    return floor._links
-
-
-def _zone_roots(floor: Floor, st: Walkway) -> dict[int, set[int]]:
-    """For each zone (index into :func:`_zones`), the roots of the joined parts that serve
-    it: directly (one full side adjoins their bodies) or through a chain of clear zones,
-    each adjoining the next by one full side."""
-    if st._zone_roots is not None:
-        return st._zone_roots
-    zones = _zones(floor)
-    sides, links = _zone_links(floor)
-    served: dict[int, set[int]] = {k: _adjoined(st, z, sides[k]) for k, z in enumerate(zones)}
-    changed = True
-    while changed:  # adjoining clear zones pass on the parts that serve them
-        changed = False
-        for k, m in links:
-            if served[m] - served[k]:
-                served[k] |= served[m]
-                changed = True
-    st._zone_roots = served
-    return served
-
-
-def roots_in(floor: Floor, st: Walkway, t: Target) -> set[int]:
-    """Roots of the joined parts that serve ``t`` in walkway ``st``."""
-    if t.kind is PlaceKind.DOOR and t.door is not None:
-        _, idx = st.mouths.get((t.door, t.room), (None, []))
-        return {st.root[i] for i in idx}
-    if t.kind is PlaceKind.ZONE:
-        if t.key >= 0:
-            return _zone_roots(floor, st)[t.key]
-        return _adjoined(st, t, _sides(t.geom))
-    return {st.root[i] for i in st.near(t.room, t.geom, t.depth)}
-
-
-def _adjoined(st: Walkway, z: Target, sides: list[LineString]) -> set[int]:
-    """Roots of the joined parts whose bodies adjoin one full side of zone ``z``."""
-    roots = {st.root[i] for i in st.within(z.room, z.geom, st.side_reach())}
-    return {rt for rt in roots if any(st.reach(z.room, rt).covers(s) for s in sides)}
-
-
-def reached(floor: Floor, t: Target, width: float, st: Walkway | None = None) -> bool:
-    """Is ``t`` reached from the entrance at ``width`` (or in walkway ``st``)?"""
-    st = st if st is not None else walkway(floor, width)
-    return bool(roots_in(floor, st, t) & st.start)
-
-
-def joined(floor: Floor, a: Target, b: Target, width: float, st: Walkway | None = None
-           ) -> bool:
-    """Are the places ``a`` and ``b`` joined by a way ``width`` wide (or in walkway ``st``)?"""
-    st = st if st is not None else walkway(floor, width)
-    return bool(roots_in(floor, st, a) & roots_in(floor, st, b))
-
-
-def place_target(floor: Floor, name: str) -> list[Target]:
-    """The targets that serve a named place of a trip: ``"entrance"``, a door, a room (its
-    free floor), a fitting (its zone, else its outline), or a piece (each use zone, else
-    its footprint). Empty when there is no such place (or the piece is not placed)."""
-    plan = floor.plan
-    entries = [ds for ds in floor.doors if ds.door.is_entrance]
-    if name == "entrance" and entries:
-        name = entries[0].door.id
-    for t in targets(floor):
-        if t.kind is PlaceKind.DOOR and t.door == name:
-            return [t]
-    if name in floor.rooms:
-        return [Target(f"room {name}", name, floor.free[name], 0.0, (), kind=PlaceKind.POINT)]
-    for f in plan.fixtures:
-        if f.id == name and f.room in floor.rooms:
-            zs = [z for z in _zones(floor) if z.ids == (f.id,)]
-            return zs or [Target(f"fitting {f.id}", f.room, floor.fixtures[f.id], 0.0, (f.id,),
-                                 kind=PlaceKind.BESIDE)]
-    if name in floor.placed:
-        pc = floor.placed[name]
-        zs = [z for z in _zones(floor) if z.ids == (name,)]
-        return zs or [Target(f"piece {name}", pc.placement.room, pc.shape, 0.0, (name,),
-                             kind=PlaceKind.BESIDE)]
-    return []
-
-
-def widest(pred: Callable[[float], bool], lo: float, hi: float) -> tuple[float, float]:
-    """Bisection: ``pred(lo)`` holds and ``pred(hi)`` fails; the last width that holds and
-    the first that fails, ``WIDTH_STEP`` apart at most (so the widest is below ``hi``)."""
-    while hi - lo > WIDTH_STEP:
-        mid = (lo + hi) / 2
-        if pred(mid):
-            lo = mid
-        else:
-            hi = mid
-    return lo, hi
-
-
-def _near_geom(floor: Floor, st: Walkway, t: Target) -> tuple[list[int], BaseGeometry]:
-    if t.kind is PlaceKind.DOOR and t.door is not None:
-        p, idx = st.mouths[(t.door, t.room)]
-        return idx, p
-    if t.kind is PlaceKind.ZONE:
-        return st.within(t.room, t.geom, st.side_reach()), t.geom
-    return st.near(t.room, t.geom, t.depth), t.geom
-
-
-def bottleneck(floor: Floor, t: Target, width: float, origin: Target | None = None
-               ) -> tuple[tuple[float, float], tuple[str, ...]]:
-    """Where the way to ``t`` (from ``origin``, by default the entrance) breaks at
-    ``width``, and the pieces and fittings of that room within a route width of it.
-
-    The nearest points between the side ``origin`` reaches and the side around the target
-    (in one room, or across a door whose mouth one of them misses); the midpoint is the
-    bottleneck.
-    """
-    st = walkway(floor, width)
-    if origin is None:
-        start = st.start
-    else:
-        start = roots_in(floor, st, origin)
-    t_idx, t_geom = _near_geom(floor, st, t)
-    t_roots = {st.root[i] for i in t_idx}
-    start_by = _by_room(st, start)
-    if not start_by:
-        for ds in floor.doors:
-            if ds.door.is_entrance if origin is None else ds.door.id == origin.door:
-                for rid in ds.door.rooms:
-                    if rid in floor.rooms:
-                        start_by.setdefault(rid, []).append(mouth(floor, ds, rid, erosion(width)))
-        if origin is not None and not start_by:
-            start_by[origin.room] = [origin.geom]
-    targ_by = _by_room(st, t_roots - start)
-    if not targ_by:
-        targ_by[t.room] = [t_geom]
-    best = min(_pairs(floor, st, start, t_roots, start_by, targ_by, width),
-               key=lambda ab: ab[0].distance(ab[1]))
-    pa, pb = nearest_points(best[0], best[1])
-    where = Point((pa.x + pb.x) / 2, (pa.y + pb.y) / 2)
-    return (round(where.x, 1), round(where.y, 1)), _next_to(floor, where)
-
-
-def _by_room(st: Walkway, roots: set[int]) -> dict[str, list[BaseGeometry]]:
-    out: dict[str, list[BaseGeometry]] = {}
-    for i, (rid, p) in enumerate(st.comps):
-        if st.root[i] in roots:
-            out.setdefault(rid, []).append(p)
-    return out
-
-
-def _pairs(floor: Floor, st: Walkway, start: set[int], t_roots: set[int],
-           start_by: dict[str, list[BaseGeometry]], targ_by: dict[str, list[BaseGeometry]],
-           width: float) -> list[tuple[BaseGeometry, BaseGeometry]]:
-    """Candidate (start side, target side) shapes between which the way breaks."""
-    pairs = [(unary_union(start_by[rid]), unary_union(targ_by[rid]))
-             for rid in start_by.keys() & targ_by.keys()]
-    for ds in floor.doors:
-        a, b = ds.door.rooms
-        for ra, rb in ((a, b), (b, a)):
-            if ra not in start_by or rb not in targ_by or rb in start_by:
-                continue
-            _, near_a = st.mouths.get((ds.door.id, ra), (None, []))
-            _, near_b = st.mouths.get((ds.door.id, rb), (None, []))
-            if any(st.root[i] in start for i in near_a):  # blocked on the target's side
-                pairs.append((mouth(floor, ds, rb, erosion(width)), unary_union(targ_by[rb])))
-            elif any(st.root[i] in t_roots for i in near_b):  # blocked on the start's side
-                pairs.append((unary_union(start_by[ra]), mouth(floor, ds, ra, erosion(width))))
-    if not pairs:
-        pairs.append((unary_union([g for v in start_by.values() for g in v]),
-                      unary_union([g for v in targ_by.values() for g in v])))
-    return pairs
-
-
-def _next_to(floor: Floor, where: Point) -> tuple[str, ...]:
-    """Pieces and fittings within a route width of ``where``, nearest first: the blockers to
-    name. Only those of the room at ``where``, and those standing in a doorway near it
-    (within 50 mm of its opening); pieces behind a wall are left out."""
-    route = floor.rules.get("route.width").exact_mm
-    room = room_at(floor, where)
-    doorways = [ds.opening.buffer(50.0) for ds in floor.doors
-                if ds.opening.distance(where) <= route]
-    near: list[tuple[float, str]] = []
-    solid = [(pid, pc.placement.room, pc.shape) for pid, pc in standing(floor)]
-    solid += [(f.id, f.room, floor.fixtures[f.id]) for f in floor.plan.fixtures]
-    for sid, rid, shape in solid:
-        if rid == room or any(shape.intersects(d) for d in doorways):
-            near.append((shape.distance(where), sid))
-    return tuple(i for d, i in sorted(near) if d <= route)

@@ -9,7 +9,8 @@ larger than the one failed layout and still sound:
    pieces where they are fails too, wherever the others go. ``sound_cut`` re-audits the
    pieces the failures name on their own to find such a set.
 2. **Lipschitz in positions.** Moving pieces by at most d mm (Euclidean) changes a clearance
-   by at most d, the widest route to a target (which moves with its piece) by at most 4 d,
+   by at most d, the widest route to a target (which moves with its piece) or between the
+   two places of a routine trip (``route.trip``, the same walkway measure) by at most 4 d,
    and the largest turning circle by at most 2 d. A route or turning failure with
    ``measured`` short of ``required`` by s mm therefore stays failed under moves below
    s / 4 mm; a move of m mm along x and y is at most m * sqrt(2) mm, so the cut asks a move of
@@ -35,11 +36,11 @@ __all__ = ["SoundCut", "sound_cut", "MARGIN", "DIVISOR"]
 #: mm taken off a shortfall before it becomes a move, per rule (the audit's rounding: routes
 #: are found to 0.5 mm with discs of 8 segments a quarter, at most 0.5 % short of round, some
 #: 2.3 mm at a 914 mm route; turning spaces on a 10 mm raster, up to 2 cells across).
-MARGIN = {"route.reach": 10, "route.width": 10, "turning.space": 30}
+MARGIN = {"route.reach": 10, "route.width": 10, "route.trip": 10, "turning.space": 30}
 #: A shortfall of s mm allows moves below s / DIVISOR mm along x and y (see the docstring).
 DIVISOR = 6
 #: Rules whose ``measured`` and ``required`` are lengths that move with the pieces as above.
-_LIPSCHITZ = ("route.reach", "route.width", "turning.space")
+_LIPSCHITZ = ("route.reach", "route.width", "route.trip", "turning.space")
 
 
 @dataclass(frozen=True)

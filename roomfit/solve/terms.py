@@ -16,7 +16,8 @@ import math
 
 from ortools.sat.python import cp_model
 
-from roomfit.audit.geometry import fixture_polygon, fixture_zone, footprint_box, room_polygon, side_direction
+from roomfit.audit.geometry import footprint_box, side_direction
+from roomfit.audit.places import end_point
 from roomfit.plan.data import Plan, Trip
 from roomfit.rules.catalog import PieceSpec
 from roomfit.solve.groups import conversation_terms, relation_group_terms, unmet_terms
@@ -306,25 +307,13 @@ def _first_doors(plan: Plan, start: str) -> dict[str, tuple[int, int]]:
 
 
 def _fixed_place(plan: Plan, name: str) -> tuple[tuple[int, int], tuple[str, ...]] | None:
-    """A trip end that does not move: its point (mm) and the rooms it can be reached from
-    directly (a door joins two). Fittings: the centre of their use zone (else of the fitting);
-    rooms: the centre of their outline; ``"entrance"``: the entrance door's centre."""
-    if name == "entrance":
-        d = next((d for d in plan.doors if d.is_entrance), None)
-        return ((round(d.at[0]), round(d.at[1])), d.rooms) if d is not None else None
-    for d in plan.doors:
-        if d.id == name:
-            return (round(d.at[0]), round(d.at[1])), d.rooms
-    for f in plan.fixtures:
-        if f.id == name:
-            shape = fixture_zone(f) or fixture_polygon(f)
-            c = shape.centroid
-            return (round(c.x), round(c.y)), (f.room,)
-    for r in plan.rooms:
-        if r.id == name:
-            c = room_polygon(r).centroid
-            return (round(c.x), round(c.y)), (r.id,)
-    return None
+    """A trip end that does not move: its point (whole mm) and the rooms it can be reached
+    from directly, by the route scorer's own rule (``roomfit.audit.places.end_point``)."""
+    got = end_point(plan, name)
+    if got is None:
+        return None
+    (x, y), rooms = got
+    return (round(x), round(y)), rooms
 
 
 #: The routine term counts distance in units of this many mm (a metre: the term only breaks
