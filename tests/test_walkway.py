@@ -229,3 +229,24 @@ def test_forward_approach_alcove_at_36_inches(span: int, ok: bool) -> None:
     assert found.ok is ok
     if not ok:
         assert found.measured == pytest.approx(span, abs=1)
+
+
+def test_a_trip_into_a_narrow_nook_shows_one_width() -> None:
+    # A WC's 700 mm wide clear floor at the end of a nook between two blocks: one full side
+    # adjoins the route (2010 ADA §305.6 wording), so the everyday set's 30 in (762 mm)
+    # night trip to it passes. The scorer's narrowest figure is measured where the person
+    # moves on the walkway (the last step into the zone is arriving, not passing), so it
+    # never reports the 700 mm nook under the route width the audit passed: here the
+    # narrowest is the 1000 mm entrance door.
+    rules = load_ruleset("everyday")
+    wc = Fixture("wc", "r", "wc", "WC", ((1650, 4800), (2350, 4800), (2350, 5000), (1650, 5000)),
+                 400, ((1650, 4000), (2350, 4000), (2350, 4800), (1650, 4800)))
+    plan = Plan("nook", (Room("r", "Room", "living", ((0, 0), (W, 0), (W, D), (0, D))),),
+                (Door("entry", ("r", OUTSIDE), (2000, 0), 1000, Leaf.NONE),), (), (wc,),
+                (_block("a", 0, 4000, 1650, 5000), _block("b", 2350, 4000, W, 5000)),
+                RuleChoice("everyday", ()), (Trip("entrance", "wc", 1.0, "Night", night=True),))
+    assert all(f.ok for f in audit(plan, rules).by_rule("route.trip"))
+    trip = score_routes(plan, rules).trips[0]
+    assert trip.reachable and trip.flags == ()
+    assert trip.narrowest_mm == pytest.approx(1000, abs=1)   # the entrance door
+    assert trip.points[-1] == pytest.approx((2000, 4400))   # still ends in the zone's middle

@@ -77,8 +77,11 @@ class TripScore:
     """One trip's route.
 
     ``length_mm``: walking length (None when unreachable); ``points``: the route from origin
-    to target; ``narrowest_mm``/``narrowest_at``: least clear width along the route and where
-    (a doorway's width counts), ``narrowest_between``: ids of the blockers on either side
+    to target; ``narrowest_mm``/``narrowest_at``: least clear width (chords) along the part of
+    the route that is walked or wheeled on the walkway, and where, never more than a doorway
+    passed (the last step into a clear floor space is arriving, judged at the space's own
+    size, so a trip the audit passes at the route width reports no narrower figure except at
+    a doorway); ``narrowest_between``: ids of the blockers on either side
     (``"wall"`` for a wall); ``turns``: changes of direction over :data:`TURN_DEGREES`;
     ``doors``: doorways passed, in order; ``reason``: why it is unreachable; ``flags``:
     plain sentences for a long or narrow night route.
@@ -199,27 +202,29 @@ def _trip(sc: _Scorer, trip: Trip, origin: str | XY, target: str | XY) -> TripSc
     space = sc.space("full")
     assert space is not None
     route_width = space.width
-    points = route_in(space, a, b) if a and b else None
+    way = route_in(space, a, b) if a and b else None
     flags: list[str] = []
-    if points is None:
+    if way is None:
         narrow = sc.space("pinch") if a and b else None
-        points = route_in(narrow, a, b) if narrow is not None else None
-        if points is None or narrow is None:
+        way = route_in(narrow, a, b) if narrow is not None else None
+        if way is None or narrow is None:
             why = _why(sc.floor, trip, origin, target, a, b)
             night = (f"night route {name}: unreachable ({why})",) if trip.night else ()
             return TripScore(**base, reachable=False, reason=why, flags=night)
         flags.append(f"{name}: only passable through narrow stretches of at least "
                      f"{narrow.width:.0f} mm, as long as the rule set allows")
-        space = narrow
+    points = list(way.points)
     doors = doors_passed(sc.passages, points)
-    door = min(((float(dw), c) for _, dw, c in doors), default=None)
-    width, where = _narrowest(sc.passages, points, door)
+    door = min(((float(dw), c, did) for did, dw, c in doors), default=None)
+    width, where = _narrowest(sc.passages, way.walked, door[:2] if door else None)
     length = path_length(points)
     if trip.night and length > NIGHT_LONG_MM:
         flags.append(f"night route {name}: {length / 1000:.1f} m, longer than "
                      f"{NIGHT_LONG_MM / 1000:.0f} m (common practice)")
     if trip.night and width < route_width - 1:
-        flags.append(f"night route {name}: narrows to {width:.0f} mm, under the "
+        at = (f" at door {door[2]} (a doorway is judged by door.width)"
+              if door is not None and (width, where) == door[:2] else "")
+        flags.append(f"night route {name}: narrows to {width:.0f} mm{at}, under the "
                      f"{route_width:.0f} mm route width")
     return TripScore(
         **base, reachable=True, length_mm=length, points=tuple(points),

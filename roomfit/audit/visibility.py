@@ -39,7 +39,7 @@ from roomfit.audit.geometry import DoorShape
 from roomfit.audit.places import PlaceKind, Target, roots_in
 from roomfit.audit.walkway import Floor, Walkway, erosion
 
-__all__ = ["MAX_CORNERS", "Space", "build_space", "route_in", "path_length"]
+__all__ = ["MAX_CORNERS", "Way", "Space", "build_space", "route_in", "path_length"]
 
 #: Most reflex vertices of one walkway part in the visibility graph (the declared bound on
 #: route scoring: a part with more is simplified first).
@@ -49,6 +49,20 @@ _TOL = 0.5          # mm: segments within this of a walkway part count as inside
 _SIMPLIFY = 2.0     # mm: first simplification tolerance for a part with too many corners
 
 XY = tuple[float, float]
+
+
+@dataclass(frozen=True)
+class Way:
+    """A route from place to place: ``points`` from one end to the other, ``walked`` the part
+    of it on the walkway (without the last steps off it: onto a door's centre, into a clear
+    floor space's middle, which the audit judges at its own size)."""
+
+    points: tuple[XY, ...]
+    walked: tuple[XY, ...]
+
+    @property
+    def length(self) -> float:
+        return path_length(self.points)
 
 
 @dataclass
@@ -212,7 +226,7 @@ def _aim(t: Target) -> XY:
     return (c.x, c.y)
 
 
-def _shortest(space: Space, a: Target, b: Target) -> list[XY] | None:
+def _shortest(space: Space, a: Target, b: Target) -> Way | None:
     """The shortest route from ``a`` to ``b`` in this walkway, with its end steps; None
     when the walkway does not join them."""
     common = roots_in(space.floor, space.st, a) & roots_in(space.floor, space.st, b)
@@ -252,8 +266,8 @@ def _shortest(space: Space, a: Target, b: Target) -> list[XY] | None:
                 del space.nodes[key]
         g.remove_nodes_from(added)
     first, last = starts[path[1][1]], ends[path[-2][1]]
-    return ([first[2]] if first[2] else []) + core + ([last[2]] if last[2] else [])
-
+    return Way(tuple(([first[2]] if first[2] else []) + core + ([last[2]] if last[2] else [])),
+               tuple(core))
 
 
 def path_length(points: Sequence[XY]) -> float:
@@ -261,13 +275,13 @@ def path_length(points: Sequence[XY]) -> float:
     return sum(math.dist(a, b) for a, b in zip(points, points[1:], strict=False))
 
 
-def route_in(space: Space, a: list[Target], b: list[Target]) -> list[XY] | None:
+def route_in(space: Space, a: list[Target], b: list[Target]) -> Way | None:
     """The shortest route between any place of ``a`` and any of ``b`` in this walkway."""
-    best: list[XY] | None = None
+    best: Way | None = None
     for x in a:
         for y in b:
-            pts = _shortest(space, x, y)
-            if pts is not None and (best is None or path_length(pts) < path_length(best)):
-                best = pts
+            way = _shortest(space, x, y)
+            if way is not None and (best is None or way.length < best.length):
+                best = way
     return best
 
