@@ -235,6 +235,10 @@ def check_trips(floor: Floor) -> list[Finding]:
     fails for a piece not placed."""
     width = floor.rules.get("route.width").exact_mm
     trips, _ = routines_for(floor.plan)
-    return [trip_finding(floor, trip, width) for trip in trips
-            if place_target(floor, trip.origin) and place_target(floor, trip.target)]
+    out: list[Finding] = []
+    for trip in trips:
+        a, b = place_target(floor, trip.origin), place_target(floor, trip.target)
+        if a and b:
+            out.append(trip_finding(floor, trip, width, a, b))
+    return out
 

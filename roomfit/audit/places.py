@@ -166,15 +166,18 @@ def _zone_links(floor: Floor) -> tuple[list[list[LineString]], list[tuple[int, i
     return floor.zone_links
 
 
-def _zone_roots(floor: Floor, st: Walkway) -> dict[int, set[int]]:
-    """For each zone (index into :func:`_zones`), the roots of the joined parts that serve
-    it: directly (one full side adjoins their bodies) or through a chain of clear zones,
-    each adjoining the next by one full side."""
-    if st.zone_roots is not None:
-        return st.zone_roots
+def _zone_roots(floor: Floor, st: Walkway, room: str) -> dict[int, set[int]]:
+    """For each zone of ``room`` (index into :func:`_zones`), the roots of the joined parts
+    that serve it: directly (one full side adjoins their bodies) or through a chain of clear
+    zones, each adjoining the next by one full side (zones adjoin only within a room, so a
+    room's zones are worked out on their own, when first asked for at this width)."""
+    if room in st.zone_roots:
+        return st.zone_roots[room]
     zones = _zones(floor)
     sides, links = _zone_links(floor)
-    served: dict[int, set[int]] = {k: _adjoined(st, z, sides[k]) for k, z in enumerate(zones)}
+    served: dict[int, set[int]] = {k: _adjoined(st, z, sides[k]) for k, z in enumerate(zones)
+                                   if z.room == room}
+    links = [(k, m) for k, m in links if k in served]
     changed = True
     while changed:  # adjoining clear zones pass on the parts that serve them
         changed = False
@@ -182,7 +185,7 @@ def _zone_roots(floor: Floor, st: Walkway) -> dict[int, set[int]]:
             if served[m] - served[k]:
                 served[k] |= served[m]
                 changed = True
-    st.zone_roots = served
+    st.zone_roots[room] = served
     return served
 
 
@@ -193,7 +196,7 @@ def roots_in(floor: Floor, st: Walkway, t: Target) -> set[int]:
         return {st.root[i] for i in idx}
     if t.kind is PlaceKind.ZONE:
         if t.key >= 0:
-            return _zone_roots(floor, st)[t.key]
+            return _zone_roots(floor, st, t.room)[t.key]
         return _adjoined(st, t, _sides(t.geom))
     return {st.root[i] for i in st.near(t.room, t.geom, t.depth)}
 

@@ -218,7 +218,8 @@ class Walkway:
     mouths: dict[tuple[str, str], tuple[Point, list[int]]]
     slack: float = 0.0   # the floor's simplification allowance (mm): see MAX_VERTICES
     _swept: dict[tuple[str, int], BaseGeometry] = field(default_factory=dict)
-    zone_roots: dict[int, set[int]] | None = None   # per zone, the roots serving it
+    # per room, per zone of it, the roots serving it (roomfit.audit.places)
+    zone_roots: dict[str, dict[int, set[int]]] = field(default_factory=dict)
 
     def tol(self, depth: float) -> float:
         return max(0.0, self.width / 2 - depth) + TOUCH_MM + self.slack
