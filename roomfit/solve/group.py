@@ -9,7 +9,6 @@ in stages that end in the relaxed model with sound cuts only (``roomfit.solve.cu
 from __future__ import annotations
 
 import math
-import threading
 import time
 from collections.abc import Callable
 from dataclasses import dataclass, replace
@@ -26,18 +25,20 @@ from roomfit.solve.bound import lower_bound
 from roomfit.solve.building import BuildingFinding, key
 from roomfit.solve.construct import FROM_PIECES, construct
 from roomfit.solve.cuts import SoundCut, sound_cut
+from roomfit.solve.explain import Explanation
 from roomfit.solve.groups import main_differs
 from roomfit.solve.model import build_model, tune
 from roomfit.solve.rooms import room_geometry
 from roomfit.solve.solution import decode, differs, evaluate, hint
 from roomfit.solve.symmetry import interchangeable
+from roomfit.solve.tally import Clock, Counters
 from roomfit.solve.vars import Built
 
 if TYPE_CHECKING:
     from roomfit.audit.check import Audit
     from roomfit.solve.search import SolveOptions
 
-__all__ = ["GroupSearch", "Found", "Counters", "Clock", "routines_of", "judge", "DIFFER_PIECES",
+__all__ = ["GroupSearch", "Found", "routines_of", "judge", "DIFFER_PIECES",
            "MOVE"]
 
 #: A later candidate must differ from every earlier one in at least this many pieces
@@ -78,37 +79,6 @@ class Found:
     objective: float
     bound: float
     optimal: bool
-
-
-class Counters:
-    """What the search did, counted from several threads at once."""
-
-    def __init__(self) -> None:
-        self._lock = threading.Lock()
-        self.values: dict[str, float] = {"solves": 0, "audits": 0, "cuts": 0, "fallback": 0}
-
-    def add(self, key: str, n: float = 1) -> None:
-        with self._lock:
-            self.values[key] += n
-
-    def __getitem__(self, key: str) -> float:
-        return self.values[key]
-
-
-class Clock:
-    """Wall clock of one solve. ``left()`` is the time left for searching: the limit less a
-    reserve for auditing the combined candidates at the end (``reserve`` seconds)."""
-
-    def __init__(self, limit: float, reserve: float = 0.0) -> None:
-        self.start = time.monotonic()
-        self.deadline = self.start + limit
-        self.reserve = reserve
-
-    def left(self) -> float:
-        return max(0.0, self.deadline - self.reserve - time.monotonic())
-
-    def elapsed(self) -> float:
-        return time.monotonic() - self.start
 
 
 def _params(solver: cp_model.CpSolver, options: SolveOptions, seconds: float, work: float) -> None:
@@ -216,8 +186,9 @@ class GroupSearch:
         self.pinch = rules.mm("route.pinch_width") if rules.has("route.pinch_width") else 0
         self.exhausted = False
         self.quick = False  # stop a run at its first valid layout
-        # a layout taken at once (quick) and not yet improved: the next run starts from it
-        self.provisional: Found | None = None
+        # layouts taken at once (quick), not yet improved (:meth:`improve`)
+        self.unimproved: list[Found] = []
+        self.stale = False  # the model holds a diversity rule of a layout no longer found
         self.hinted = False  # the model holds the warm start's hint
         self.floor: float | None = None  # proven lower bound of the objective (pieces apart)
         self.warm: dict[str, Placement] = {}  # the layout built up unit by unit
@@ -240,14 +211,14 @@ class GroupSearch:
         the time is up or proves that no further layout passes."""
         if self.exhausted or len(self.found) >= wanted:
             return
-        if self.built is not None and self.provisional is not None:
-            self._improve(wanted, budget_end)
+        if self.stale:
+            self._start(self.stage, again=True)
         last = len(self.stages) - 1
         while len(self.found) < wanted and not self.exhausted:
             if self.built is None:
                 self._start(0)
                 if self._warm_start(budget_end) and not self.quick:
-                    self._improve(wanted, budget_end)
+                    self.improve(budget_end)
                     continue
             left = max(0.0, budget_end - time.monotonic())
             stage_end = budget_end if self.stage == last else (
@@ -275,10 +246,22 @@ class GroupSearch:
         return ([(True, False, step)] + [(False, False, step >> k) for k in range(4)]
                 + [(False, True, 0)])
 
+    def explain_exhausted(self) -> Explanation:
+        """Why nothing fits when every layout of the relaxed model failed the audit."""
+        rooms = ", ".join(self.plan.room(r).label for r in self.rooms)
+        pieces = tuple(dict.fromkeys(p for c in self.sound for p in c.cut.pieces))
+        rules = tuple(sorted(self.failed_rules))
+        return Explanation(
+            f"Every arrangement of the {rooms} that keeps the pieces apart and their clear "
+            f"floor free was tried against the rules and fails ({len(self.sound)} checked, each "
+            f"cut off with the layouts that fail for the same reason): {', '.join(rules)}. "
+            f"(Positions in whole millimetres; angled walls covered on a {self.options.grid} mm "
+            "grid.)", pieces, rules, ())
+
     def _warm_start(self, budget_end: float) -> bool:
         """A large group starts from a layout built unit by unit (``roomfit.solve.construct``,
         at most ``_WARM_SHARE`` of the time left). When it passes the audit it is the group's
-        first layout at once (provisional: the search improves on it); either way it is the
+        first layout at once (taken at once: :meth:`improve` improves on it); either way it is the
         hint of the first run of every stage until a layout is found, and the complete
         search follows as before. True when it passed."""
         if len(self.ids - self.locked) < FROM_PIECES:
@@ -299,8 +282,11 @@ class GroupSearch:
         objective = evaluate(self.built, got.placements)
         if objective is None:  # not a solution of this model after all: the hint stays
             return False
-        self.provisional = Found(got.placements, objective, 0.0, False)
-        self.found.append(self.provisional)
+        taken = Found(got.placements, objective, 0.0, False)
+        self.found.append(taken)
+        self.unimproved.append(taken)
+        self._forbid_near(self.built, [pv for pv in self.built.pieces if not pv.locked],
+                          taken.placements)
         self.valid_at(self.clock.elapsed())
         self._say(f"rooms {', '.join(self.rooms)}: candidate {len(self.found)} (built up, "
                   f"objective {objective:g}); improving")
@@ -334,30 +320,48 @@ class GroupSearch:
             f.bound = max(f.bound, floor)
             f.optimal = f.optimal or f.objective <= floor
 
-    def _improve(self, wanted: int, budget_end: float) -> None:
-        """Search again from the layout taken at once in the first phase, with its fair share
-        of the time (one of ``wanted``); the best checker-passing layout replaces it. If the
-        run finds none or only worse ones, the first layout stays."""
-        prov, built = self.provisional, self.built
-        assert prov is not None and built is not None
-        self.provisional = None
-        self.found.remove(prov)
-        before = len(self.found)
-        if evaluate(built, prov.placements) is None:  # evaluate hints the whole solution
-            hint(built, prov.placements)
-        self._loop(before + 1, budget_end, budget_end, share_of=max(1, wanted - before))
-        built.model.clear_hints()
-        if len(self.found) > before and self.found[-1].objective <= prov.objective:
-            return
-        del self.found[before:]
-        self.found.append(prov)
-        self._forbid_near(built, [pv for pv in built.pieces if not pv.locked], prov.placements)
+    def improve(self, budget_end: float) -> None:
+        """Improve the layouts taken at once (``quick``), oldest first, each with a fair share
+        of the time left: each is searched again from itself (every variable hinted) in a
+        model that asks it to differ from the other layouts only; the best checker-passing
+        layout of that run replaces it (it stays when none is better)."""
+        while self.unimproved:
+            left = budget_end - time.monotonic()
+            if left <= 0.1:
+                return
+            taken = self.unimproved.pop(0)
+            self._improve_one(taken, time.monotonic() + left / (len(self.unimproved) + 1))
 
-    def _start(self, stage: int) -> None:
-        """Build the model of ``stage`` (:meth:`_stages`) with the diversity rules of the
-        layouts found so far and the cuts of every failed layout, as this stage takes them."""
-        if stage > 0:
+    def _improve_one(self, taken: Found, end: float) -> None:
+        """One layout of :meth:`improve`, until ``end``."""
+        at = self.found.index(taken)
+        self.found.remove(taken)
+        self._start(self.stage, again=True)  # without the diversity rule of ``taken``
+        built = self.built
+        assert built is not None
+        if evaluate(built, taken.placements) is None:  # evaluate hints the whole solution
+            hint(built, taken.placements)
+        before, quick = len(self.found), self.quick
+        self.quick = False
+        try:
+            self._loop(before + 1, end, end, share_of=1)
+        finally:
+            self.quick = quick
+        built.model.clear_hints()
+        got = self.found[before] if len(self.found) > before else None
+        better = got is not None and got.objective <= taken.objective
+        del self.found[before:]
+        self.found.insert(at, got if better and got is not None else taken)
+        # the model now forbids the run's layout; without it, it must forbid ``taken``
+        self.stale = not better
+
+    def _start(self, stage: int, again: bool = False) -> None:
+        """Build the model of ``stage`` (:meth:`_stages`; ``again``: the same stage once
+        more) with the diversity rules of the layouts found so far and the cuts of every
+        failed layout, as this stage takes them."""
+        if stage > 0 and not again:
             self.counters.add("fallback")
+        self.stale = False
         self.stage = stage
         strengthen, relaxed, _ = self.stages[stage]
         self.built = build_model(self.plan, self.rules, self.specs, self.rooms, self.options.grid,
@@ -426,10 +430,9 @@ class GroupSearch:
             self.valid_at(self.clock.elapsed())
             self._say(f"rooms {', '.join(self.rooms)}: candidate {len(self.found)} "
                       f"(objective {accepted.objective:g}{', optimal' if accepted.optimal else ''})")
+            self._forbid_near(built, movable, accepted.placements)
             if self.quick and not accepted.optimal:
-                self.provisional = accepted  # improved before the diversity rule is added
-            else:
-                self._forbid_near(built, movable, accepted.placements)
+                self.unimproved.append(accepted)  # improved later (:meth:`improve`)
         return "done"
 
     def _judge(self, where: dict[str, Placement], keep: set[str] | None = None):

@@ -1,11 +1,10 @@
 """Find furniture arrangements: CP-SAT search, verified by the checker, several alternatives.
 
 ``solve(plan, rules, options)`` splits the plan into groups of rooms that share no piece
-(rooms whose pieces are all assigned stand alone), builds the placement model of each group
-(``roomfit.solve.model``), and runs a verify-and-cut loop: every layout CP-SAT returns is audited
-with exact geometry (``roomfit.audit.check.audit``); a layout that fails is cut off (one of the
-pieces the failed finding names must move or turn) and the model is solved again. Only
-layouts that pass the audit are returned.
+(rooms whose pieces are all assigned stand alone) and runs a verify-and-cut loop per group:
+every layout CP-SAT returns is audited with exact geometry (``roomfit.audit.check.audit``);
+a layout that fails is cut off and the model solved again. Only layouts that pass the audit
+are returned.
 
 Candidates are ranked by the functional-group rules they miss
 (``roomfit.audit.quality.group_failures``), then as ``roomfit compare`` ranks plans: by the
@@ -17,10 +16,9 @@ soft preferences), ``found`` (candidates found, not all proven optimal), ``impos
 arrangement exists in the model, with an :class:`Explanation`), ``timeout`` (nothing
 checker-passing found in time; not proven impossible).
 
-The search first runs a *strengthened* model (pairwise gap rules and door walkways, see
-``roomfit.solve.model``) that avoids most circulation failures; if that model has no valid layout
-it falls back to the plain model. "Impossible" is only said of the plain model, never of the
-strengthened one nor after a cut.
+Each group searches in stages that end in a complete one (``roomfit.solve.group``): the
+first layout of every group, then the alternatives, each taken at once, then the lower
+bounds (``roomfit.solve.bound``) and the layouts improved with the time left.
 
 Reproducible and bounded: each search runs one CP-SAT worker (on our models one worker finds
 a first layout sooner than two, interleaved or not) under a deterministic work limit fixed by
@@ -50,12 +48,11 @@ from roomfit.solve.explain import Explanation, Fix, explain, precheck
 from roomfit.solve.group import (
     DIFFER_PIECES,
     MOVE,
-    Clock,
-    Counters,
     GroupSearch,
     judge,
     routines_of,
 )
+from roomfit.solve.tally import Clock, Counters
 
 if TYPE_CHECKING:
     from roomfit.audit.check import Audit
@@ -94,6 +91,10 @@ _FIRST_PHASE_SHARE = 0.6
 #: each group's objective with pieces apart (``roomfit.solve.bound``: some 0.2 s of CPU for a
 #: 10-piece room), so the gap a candidate reports means something.
 _SEARCH_SHARE = 0.9
+
+#: Share of a group's last phase that proving the bound takes when layouts taken at once
+#: wait to be improved (all of it otherwise).
+_BOUND_SHARE = 0.25
 
 
 
@@ -292,7 +293,12 @@ def solve(plan: Plan, rules: RuleSet, options: SolveOptions | None = None,
                 waiting = len(searches) - done[0]
             left = max(0.0, pool_end - time.monotonic())
             end = time.monotonic() + min(1.0, lanes / waiting) * left
-            s.run(wanted, end) if wanted else s.prove_bound(end)
+            if wanted:
+                s.run(wanted, end)
+            else:  # the bound first (it may prove a layout optimal), then improving
+                share = _BOUND_SHARE if s.unimproved else 1.0
+                s.prove_bound(time.monotonic() + share * (end - time.monotonic()))
+                s.improve(end)
             with lock:
                 done[0] += 1
 
@@ -301,22 +307,24 @@ def solve(plan: Plan, rules: RuleSet, options: SolveOptions | None = None,
         with ThreadPoolExecutor(max_workers=lanes) as pool:
             list(pool.map(run, searches))
 
-    # first one layout for every group (a valid arrangement of the whole flat), then more
+    # first one layout for every group (a valid arrangement of the whole flat), then the
+    # alternatives, each taken at once; then the lower bounds, and every layout taken at
+    # once improved with the time left
     more = options.candidates > 1
-    for s in searches:  # more groups than lanes: take the first valid layout and move on
-        s.quick = more and len(searches) > lanes
+    for s in searches:
+        s.quick = more
     phase(1, _FIRST_PHASE_SHARE if more else _SEARCH_SHARE)
     if not all(s.found or s.exhausted for s in searches):
         phase(1, 1.0)  # a group without a layout yet keeps searching until the time is up
     if more and all(s.found for s in searches):
-        for s in searches:
-            s.quick = False
-        phase(options.candidates, _SEARCH_SHARE)
+        phase(options.candidates, 1.0)
+    for s in searches:
+        s.quick = False
     if all(s.found for s in searches):
-        phase(0, 1.0)  # the rest proves lower bounds that mean something
+        phase(0, 1.0)
     for s, (rooms, group_specs) in zip(searches, groups, strict=True):
         if s.impossible:
-            expl = (_exhausted(plan, s) if s.sound else
+            expl = (s.explain_exhausted() if s.sound else
                     explain(plan, rules, group_specs, rooms, options, clock.deadline))
             expl = _confirmed(plan, rules, options, expl, clock) if confirm else expl
             return SolveResult(Status.IMPOSSIBLE, (), expl, stats(), building=building)
@@ -428,19 +436,6 @@ def _combine(plan: Plan, rules: RuleSet, searches: list[GroupSearch], wanted: in
                             c.objective))
     return [replace(c, rank=i) for i, c in enumerate(out)]
 
-
-
-def _exhausted(plan: Plan, s: GroupSearch) -> Explanation:
-    """Why nothing fits when every layout of the relaxed model failed the audit."""
-    rooms = ", ".join(plan.room(r).label for r in s.rooms)
-    pieces = tuple(dict.fromkeys(p for c in s.sound for p in c.cut.pieces))
-    rules = tuple(sorted(s.failed_rules))
-    return Explanation(
-        f"Every arrangement of the {rooms} that keeps the pieces apart and their clear floor "
-        f"free was tried against the rules and fails ({len(s.sound)} checked, each cut off with "
-        f"the layouts that fail for the same reason): {', '.join(rules)}. (Positions in whole "
-        f"millimetres; angled walls covered on a {s.options.grid} mm grid.)",
-        pieces, rules, ())
 
 
 #: Fixes an explanation proposes that are solved at most, and seconds each solve may take.
