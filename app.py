@@ -410,7 +410,7 @@ def _candidate(i: int, a: dict[str, Any]) -> None:
     st.caption(f"Free floor {row.text('free_floor')} · group rules met {row.text('groups')}"
                f" · preferences met {row.text('preferences')}")
     with st.expander("Rule findings"):
-        st.dataframe(page.findings_rows(row.audit.findings), hide_index=True, width="stretch")
+        st.dataframe(page.findings_rows(row.audit.findings, row.plan.unit), hide_index=True, width="stretch")
     with st.expander("Layout quality (advisory)"):
         st.dataframe([{k: q[k] for k in ("text", "kind", "source")}
                       for q in quality_record(row.quality)], hide_index=True)

@@ -184,7 +184,7 @@ def arrange(plan: Plan, rules: RuleSet) -> None:
         show_svg(kept("arrange", (plan, rules, show),
                        lambda: _drawing(plan, rules, show, result)), zoom)
     with st.expander("Every rule finding"):
-        st.dataframe(page.findings_rows(result.findings), hide_index=True, width="stretch")
+        st.dataframe(page.findings_rows(result.findings, plan.unit), hide_index=True, width="stretch")
 
 
 # --------------------------------------------------------------------------------- building

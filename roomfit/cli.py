@@ -195,6 +195,7 @@ def _cmd_check(args: argparse.Namespace) -> int:
     from roomfit.audit.check import audit, audit_record, marks_for, summary_text
     from roomfit.audit.quality import quality, quality_lines, quality_record
     from roomfit.files import atomic_write, refuse_input_overwrite
+    from roomfit.plan.units import in_plan_units
 
     if args.draw:
         refuse_input_overwrite(args.draw, args.plan)
@@ -213,7 +214,10 @@ def _cmd_check(args: argparse.Namespace) -> int:
         print(json.dumps(record, indent=2, ensure_ascii=False))
     else:
         print(f"{args.plan}: audit of {_titled(plan)}")
-        print(summary_text(result, rules))
+        # the plan's own units, but each source quoted as the standard words it
+        print("\n".join(line if line.lstrip().startswith("source:")
+                        else in_plan_units(line, plan.unit)
+                        for line in summary_text(result, rules).splitlines()))
         if groups:
             print("layout quality (advisory, not safety rules; the verdict above does not "
                   "count them):")

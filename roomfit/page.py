@@ -30,7 +30,7 @@ from typing import Any, TypeVar
 from roomfit.errors import PlanError, Problem, RoomfitError, RuleError
 from roomfit.plan.data import Layout, Piece, Placement, Plan, RuleChoice
 from roomfit.plan.read import loads_plan
-from roomfit.plan.units import IMPERIAL, show_length
+from roomfit.plan.units import IMPERIAL, in_plan_units, show_length, show_measure
 from roomfit.plan.write import dumps_plan
 from roomfit.rules.catalog import load_catalog, resolve_pieces
 from roomfit.rules.sets import RuleSet, load_ruleset
@@ -268,22 +268,18 @@ def rule_rows(rules: RuleSet) -> list[dict[str, Any]]:
     return rows
 
 
-def findings_rows(findings: Sequence[Any]) -> list[dict[str, Any]]:
-    """One row per audit finding (``check.Finding``), failures first; areas in mm²."""
+def findings_rows(findings: Sequence[Any], unit: str = "mm") -> list[dict[str, Any]]:
+    """One row per audit finding (``check.Finding``), failures first, in the plan's ``unit``
+    (feet and inches, square feet for plans in ``in`` or ``ft``)."""
     from roomfit.audit.check import AREA_RULES
-
-    def amount(f: Any, v: float | None) -> str:
-        if v is None:
-            return ""
-        return f"{v:.0f} mm²" if f.rule in AREA_RULES else f"{v:.0f} mm"
 
     ordered = sorted(findings, key=lambda f: f.ok)
     return [{
         "result": "pass" if f.ok else "FAIL",
         "rule": f.rule,
-        "finding": f.message,
-        "measured": amount(f, f.measured),
-        "required": amount(f, f.required),
+        "finding": in_plan_units(f.message, unit),
+        "measured": show_measure(f.measured, unit, area=f.rule in AREA_RULES),
+        "required": show_measure(f.required, unit, area=f.rule in AREA_RULES),
         "pieces": ", ".join(f.pieces),
         "room": f.room or "",
         "source": f.source,

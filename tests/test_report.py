@@ -108,4 +108,4 @@ def test_report_areas_in_square_centimetres():
     # 120 000 mm2 = 1200 cm2 (1 cm2 = 100 mm2)
     plan = read_plan(Path(__file__).parent / "plans_unseen" / "column-room.toml")
     html = build_report(compare([plan], None), date=dt.date(2026, 3, 14))
-    assert "<td>1200 cm&sup2;</td><td>none</td>" in html  # none of the zone may be covered
+    assert "<td>1200 cm²</td><td>none</td>" in html  # none of the zone may be covered

@@ -129,3 +129,34 @@ def test_a_feet_and_inches_plan_round_trips_through_solve(tmp_path, capsys) -> N
     assert all(p.placement is not None for p in again.furniture)
     svg = sorted(out.glob("*.svg"))[0].read_text()
     assert "sq ft" in svg and re.search(r"\d+' \d+( \d/\d)?\"", svg.replace("&quot;", '"'))
+
+
+def test_a_plan_in_feet_is_summarised_in_feet_and_inches(capsys) -> None:
+    """The audit of a plan measured in feet reads in feet and inches and square feet, on the
+    command line and in the report: no millimetre figure left in a finding."""
+    import re
+    from pathlib import Path
+
+    from roomfit.audit.check import audit
+    from roomfit.cli import main
+    from roomfit.plan.read import read_plan
+    from roomfit.plan.units import in_plan_units
+    from roomfit.present.compare import compare
+    from roomfit.present.report import build_report
+    from roomfit.rules.sets import rules_for
+
+    src = Path(__file__).parent / "plans_unseen" / "feet-l-shape.toml"
+    main(["check", str(src)])
+    text = capsys.readouterr().out
+    findings = [line for line in text.splitlines() if line.startswith(("      - ", "      ok:"))]
+    assert findings and not any(re.search(r"\d mm\b|cm2", line) for line in findings), findings
+    assert re.search(r"\d+' \d+( \d/\d)?\"", text) and "sq ft" in text
+    # 1 in = 25.4 mm exactly: a 1036 mm passage is 40.79 in, shown to the quarter inch
+    assert in_plan_units("1036 mm", "ft") == "3' 4 3/4\""
+    plan = read_plan(src)
+    html = build_report(compare([plan]))
+    first = audit(plan, rules_for(plan)).failures[0].message
+    assert in_plan_units(first, "ft").replace("'", "&#x27;").replace('"', "&quot;") in html
+    # a source is quoted as the standard words it, in its own units
+    assert "[B5]" in text and any("1200 mm" in line for line in text.splitlines()
+                                  if line.lstrip().startswith("source:"))

@@ -29,7 +29,7 @@ from roomfit.plan.limits import MAX_COORDINATE_MM
 
 __all__ = ["UNITS", "IMPERIAL", "MM_PER", "FORMS", "parse_length", "to_unit", "format_length",
            "inches", "format_inches", "format_feet_inches", "show_length", "format_area",
-           "write_length"]
+           "write_length", "show_area", "show_measure", "in_plan_units"]
 
 #: Millimetres per unit, exact.
 MM_PER: dict[str, Fraction] = {
@@ -212,6 +212,55 @@ def format_area(mm2: float, unit: str) -> str:
     if unit in IMPERIAL:
         text += f" ({float(Fraction(str(mm2)) / _MM2_PER_SQFT):.1f} sq ft)"
     return text
+
+
+def show_area(mm2: float, unit: str) -> str:
+    """A small area (what a piece or wall cuts off a zone) as a plan in ``unit`` reads it:
+    square feet for plans in ``in`` or ``ft``, cm² otherwise."""
+    if unit in IMPERIAL:
+        return f"{float(Fraction(str(mm2)) / _MM2_PER_SQFT):.2f} sq ft"
+    return f"{mm2 / 100:.0f} cm²"
+
+
+def show_measure(value: float | None, unit: str, *, area: bool = False) -> str:
+    """A finding's measured or required figure (mm, or mm² when ``area``) as a plan in
+    ``unit`` reads it; ``-`` when there is none.
+
+    >>> print(show_measure(914, "ft"), show_measure(120000, "mm", area=True), show_measure(None, "mm"))
+    3' 0" 1200 cm² -
+    """
+    if value is None:
+        return "-"
+    return show_area(value, unit) if area else show_length(value, unit)
+
+
+_BY_WORDS = re.compile(r"(?<![\w.])(\d+(?:\.\d+)?) x (\d+(?:\.\d+)?) mm(?![\w²])")
+_MM_WORDS = re.compile(r"(?<![\w.])(-?\d+(?:\.\d+)?) mm(?![\w²])")
+_CM2_WORDS = re.compile(r"(?<![\w.])(\d+(?:\.\d+)?) cm(?:2|²)(?!\w)")
+_POINT_WORDS = re.compile(r"\((-?\d+(?:\.\d+)?), (-?\d+(?:\.\d+)?)\)")
+
+
+def in_plan_units(text: str, unit: str) -> str:
+    """Words the audit wrote in millimetres, as a plan measured in ``unit`` reads them: for
+    plans in ``in`` or ``ft`` every length ``N mm`` in feet and inches, every area ``N cm2``
+    in square feet and every plan point ``(x, y)`` in feet and inches; other plans' words
+    unchanged. The figures stay exact millimetres inside; only what is shown changes.
+
+    >>> print(in_plan_units("914 mm wide at (1000, 2000), 256 cm2 outside", "ft"))
+    3' 0" wide at (3' 3 1/4", 6' 6 3/4"), 0.28 sq ft outside
+    >>> print(in_plan_units("a 1200 x 1500 mm space", "in"))
+    a 3' 11 1/4" x 4' 11" space
+    >>> print(in_plan_units("914 mm wide at (1000, 2000)", "cm"))
+    914 mm wide at (1000, 2000)
+    """
+    if unit not in IMPERIAL:
+        return text
+    text = _BY_WORDS.sub(lambda m: f"{format_feet_inches(float(m.group(1)))} x "
+                         f"{format_feet_inches(float(m.group(2)))}", text)
+    text = _MM_WORDS.sub(lambda m: format_feet_inches(float(m.group(1))), text)
+    text = _CM2_WORDS.sub(lambda m: show_area(float(m.group(1)) * 100, unit), text)
+    return _POINT_WORDS.sub(lambda m: f"({format_feet_inches(float(m.group(1)))}, "
+                            f"{format_feet_inches(float(m.group(2)))})", text)
 
 
 def write_length(mm: int, unit: str) -> int | float | str:

@@ -16,8 +16,9 @@ import datetime as _dt
 import re
 from html import escape
 
-from roomfit.audit.check import AREA_RULES, marks_for
+from roomfit.audit.check import AREA_RULES, Finding, marks_for
 from roomfit.caution import CAUTION
+from roomfit.plan.units import in_plan_units, show_measure
 from roomfit.present.compare import METRICS, Better, Comparison, Row
 from roomfit.present.draw import draw_svg
 
@@ -79,12 +80,8 @@ def _metrics_table(cmp: Comparison) -> str:
     return "\n".join(out)
 
 
-def _mm(v: float | None) -> str:
-    return "-" if v is None else f"{v:.0f} mm"
-
-
 def _routes_table(row: Row) -> str:
-    rs = row.routes
+    rs, unit = row.routes, row.plan.unit
     out = ["<table class='routes'><tr><th>Trip</th><th>Per day</th><th>Length</th>"
            "<th>Metres a day</th><th>Narrowest</th><th>Where</th><th>Turns</th>"
            "<th>Doorways</th><th>Notes</th></tr>"]
@@ -95,11 +92,12 @@ def _routes_table(row: Row) -> str:
                        f"unreachable</td><td>{escape(t.reason)}</td></tr>")
             continue
         where = "-" if t.narrowest_at is None else (
-            f"({t.narrowest_at[0]:.0f}, {t.narrowest_at[1]:.0f}) between "
-            + escape(" and ".join(t.narrowest_between)))
+            in_plan_units(f"({t.narrowest_at[0]:.0f}, {t.narrowest_at[1]:.0f})", unit)
+            + " between " + " and ".join(t.narrowest_between))
         out.append(
             f"<tr><td>{name}</td><td>{t.per_day:g}</td><td>{t.length_mm / 1000:.2f} m</td>"
-            f"<td>{t.metres_per_day:.1f} m</td><td>{_mm(t.narrowest_mm)}</td><td>{where}</td>"
+            f"<td>{t.metres_per_day:.1f} m</td><td>{show_measure(t.narrowest_mm, unit)}</td>"
+            f"<td>{escape(where)}</td>"
             f"<td>{t.turns}</td><td>{escape(', '.join(t.doors)) or '-'}</td>"
             f"<td>{escape('; '.join(t.flags))}</td></tr>")
     out.append("</table>")
@@ -113,18 +111,15 @@ def _routes_table(row: Row) -> str:
     return "\n".join(out) + "".join(f"<p class='note'>{n}</p>" for n in notes)
 
 
-def _amount(rule: str, v: float | None) -> str:
-    if v is None or rule not in AREA_RULES:
-        return _mm(v)
-    return f"{v / 100:.0f} cm&sup2;"  # 1 cm2 = 100 mm2
-
-
-def _finding_row(f) -> str:  # noqa: ANN001 - a check.Finding
+def _finding_row(f: Finding, unit: str) -> str:
+    """One finding as a table row, in the plan's own units (feet and inches for in/ft)."""
     state = "<span class='pass'>pass</span>" if f.ok else "<span class='fail'>FAIL</span>"
-    return (f"<tr><td>{escape(f.rule)}</td><td>{state}</td><td>{escape(f.message)}</td>"
-            f"<td>{_amount(f.rule, f.measured)}</td>"
-            f"<td>{'none' if f.rule in AREA_RULES and f.required == 0 else _amount(f.rule, f.required)}</td>"
-            f"<td>{escape(f.source) or 'geometry'}</td></tr>")
+    area = f.rule in AREA_RULES
+    required = "none" if area and f.required == 0 else show_measure(f.required, unit, area=area)
+    return (f"<tr><td>{escape(f.rule)}</td><td>{state}</td>"
+            f"<td>{escape(in_plan_units(f.message, unit))}</td>"
+            f"<td>{escape(show_measure(f.measured, unit, area=area))}</td>"
+            f"<td>{escape(required)}</td><td>{escape(f.source) or 'geometry'}</td></tr>")
 
 
 def _findings(row: Row) -> str:
@@ -132,13 +127,14 @@ def _findings(row: Row) -> str:
             "<th>Required</th><th>Source</th></tr>")
     fails = [f for f in row.audit.findings if not f.ok]
     passes = [f for f in row.audit.findings if f.ok]
+    unit = row.plan.unit
     out = [f"<p>{len(fails)} of {len(row.audit.findings)} checks fail.</p>"]
     if fails:
-        out.append("<table class='findings'>" + head + "".join(map(_finding_row, fails))
+        out.append("<table class='findings'>" + head + "".join(_finding_row(f, unit) for f in fails)
                    + "</table>")
     if passes:
         out.append(f"<details><summary>{len(passes)} checks pass</summary>"
-                   "<table class='findings'>" + head + "".join(map(_finding_row, passes))
+                   "<table class='findings'>" + head + "".join(_finding_row(f, unit) for f in passes)
                    + "</table></details>")
     return "\n".join(out)
 
