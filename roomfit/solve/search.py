@@ -274,54 +274,9 @@ def solve(plan: Plan, rules: RuleSet, options: SolveOptions | None = None,
         return SolveResult(Status.OPTIMAL, (Candidate(plan.layout, 0.0, 0.0, True, 0, bare,
                                                        score_routes(plan, rules)),),
                            None, stats())
-    lanes = max(1, options.workers)
     searches += [GroupSearch(plan, rules, rooms, group_specs, options, clock, progress, counters,
-                         building) for rooms, group_specs in groups]
-    for s in searches:
-        s.work_share = min(1.0, lanes / len(groups))
-
-    def phase(wanted: int, portion: float) -> None:
-        """Every group searches up to ``wanted`` layouts (proves the lower bound of its
-        objective when ``wanted`` is 0), ``lanes`` groups at a time, each with a fair share
-        of ``portion`` of the time left among the groups still waiting."""
-        lock = threading.Lock()
-        done = [0]
-        pool_end = time.monotonic() + portion * clock.left()
-
-        def run(s: GroupSearch) -> None:
-            with lock:
-                waiting = len(searches) - done[0]
-            left = max(0.0, pool_end - time.monotonic())
-            end = time.monotonic() + min(1.0, lanes / waiting) * left
-            if wanted:
-                s.run(wanted, end)
-            else:  # the bound first (it may prove a layout optimal), then improving
-                share = _BOUND_SHARE if s.unimproved else 1.0
-                s.prove_bound(time.monotonic() + share * (end - time.monotonic()))
-                s.improve(end)
-            with lock:
-                done[0] += 1
-
-        # groups share no piece and no room: they are searched side by side, one CP-SAT
-        # worker each (one worker also keeps each search deterministic)
-        with ThreadPoolExecutor(max_workers=lanes) as pool:
-            list(pool.map(run, searches))
-
-    # first one layout for every group (a valid arrangement of the whole flat), then the
-    # alternatives, each taken at once; then the lower bounds, and every layout taken at
-    # once improved with the time left
-    more = options.candidates > 1
-    for s in searches:
-        s.quick = more
-    phase(1, _FIRST_PHASE_SHARE if more else _SEARCH_SHARE)
-    if not all(s.found or s.exhausted for s in searches):
-        phase(1, 1.0)  # a group without a layout yet keeps searching until the time is up
-    if more and all(s.found for s in searches):
-        phase(options.candidates, 1.0)
-    for s in searches:
-        s.quick = False
-    if all(s.found for s in searches):
-        phase(0, 1.0)
+                             building) for rooms, group_specs in groups]
+    _search(searches, options, clock)
     for s, (rooms, group_specs) in zip(searches, groups, strict=True):
         if s.impossible:
             expl = (s.explain_exhausted() if s.sound else
@@ -339,6 +294,56 @@ def solve(plan: Plan, rules: RuleSet, options: SolveOptions | None = None,
     status = Status.OPTIMAL if all(c.optimal for c in candidates) else Status.FOUND
     return SolveResult(status, tuple(candidates), None, stats(),
                        _fewer(plan, searches, options.candidates, len(candidates)), building)
+
+
+def _search(searches: list[GroupSearch], options: SolveOptions, clock: Clock) -> None:
+    """The phases of the search over every group: first one layout for every group (a valid
+    arrangement of the whole flat), then the alternatives, each taken at once; then the
+    lower bounds, and every layout taken at once improved with the time left."""
+    lanes = max(1, options.workers)
+    for s in searches:
+        s.work_share = min(1.0, lanes / len(searches))
+    more = options.candidates > 1
+    for s in searches:
+        s.quick = more
+    _phase(searches, lanes, clock, 1, _FIRST_PHASE_SHARE if more else _SEARCH_SHARE)
+    if not all(s.found or s.exhausted for s in searches):
+        _phase(searches, lanes, clock, 1, 1.0)  # a group without a layout keeps searching
+    if more and all(s.found for s in searches):
+        _phase(searches, lanes, clock, options.candidates, 1.0)
+    for s in searches:
+        s.quick = False
+    if all(s.found for s in searches):
+        _phase(searches, lanes, clock, 0, 1.0)
+
+
+def _phase(searches: list[GroupSearch], lanes: int, clock: Clock, wanted: int,
+           portion: float) -> None:
+    """Every group searches up to ``wanted`` layouts (proves the lower bound of its
+    objective when ``wanted`` is 0), ``lanes`` groups at a time, each with a fair share
+    of ``portion`` of the time left among the groups still waiting."""
+    lock = threading.Lock()
+    done = [0]
+    pool_end = time.monotonic() + portion * clock.left()
+
+    def run(s: GroupSearch) -> None:
+        with lock:
+            waiting = len(searches) - done[0]
+        left = max(0.0, pool_end - time.monotonic())
+        end = time.monotonic() + min(1.0, lanes / waiting) * left
+        if wanted:
+            s.run(wanted, end)
+        else:  # the bound first (it may prove a layout optimal), then improving
+            share = _BOUND_SHARE if s.unimproved else 1.0
+            s.prove_bound(time.monotonic() + share * (end - time.monotonic()))
+            s.improve(end)
+        with lock:
+            done[0] += 1
+
+    # groups share no piece and no room: they are searched side by side, one CP-SAT
+    # worker each (one worker also keeps each search deterministic)
+    with ThreadPoolExecutor(max_workers=lanes) as pool:
+        list(pool.map(run, searches))
 
 
 #: The solver places furniture only within this many mm of the plan's origin (1 km): the
