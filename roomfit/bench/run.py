@@ -124,9 +124,11 @@ def _plots(results: dict[str, Any], out: Path, quick: bool) -> None:
     cert = results["sections"].get("certified")
     if cert:
         groups = cert["groups"]
-        labels = list(groups[0]["methods"])
-        series = [(label, [r["first"] for g in groups for r in g["methods"][label]["rows"]])
-                  for label in labels]
+        prev = (cert.get("previous_commit") or "?")[:7]
+        names = {"solver": "solver", "baseline": "baseline", "previous": f"previous ({prev})"}
+        series = [(names.get(label, label), [r["first"] for g in groups
+                                             for r in g["methods"][label]["rows"]])
+                  for label in groups[0]["methods"]]
         sizes = " and ".join(f"{g['count']} of {g['pieces']} pieces" for g in groups)
         atomic_write(out.with_name(out.stem + "-certified.svg"),
                      found_svg(series, cert["time_limit_s"], f"certified corpus ({mode}): {sizes}"))
