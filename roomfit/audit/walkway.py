@@ -103,7 +103,9 @@ QUAD_SEGS = 8
 #: it (doubling from 1 mm until it has at most this many), which never widens a passage
 #: and narrows one by at most twice the tolerance (:attr:`Floor.simplified_mm`). This is
 #: the declared bound that keeps shrinking and route scoring near-linear in the vertices.
-MAX_VERTICES = 2000
+#: 1000, the most corners a plan file's outline may have: the work peaked just under an
+#: earlier 2000 (an audit of 50 s at 1990 corners, docs/benchmarks.md), 2.4 s at 1000.
+MAX_VERTICES = 1000
 
 
 def polys(g: BaseGeometry) -> list[Polygon]:
