@@ -242,3 +242,48 @@ def test_a_sound_cut_from_a_routine_trip_removes_only_failing_layouts() -> None:
                 moved = {"a": Placement(0 + min(da, 0), 2000 + dy, 0, "r"),
                          "b": Placement(2000 + max(db, 0), 2000 - dy, 0, "r")}
                 assert not judged(moved).passed, moved
+
+
+def test_advice_on_a_timeout_is_confirmed_by_a_solve_of_the_changed_plan() -> None:
+    """On a search the time limit ended, a piece allowed in several rooms gets the advice to
+    stand in one of them only if a solve of that changed plan finds an arrangement: the
+    closet (900 mm square) cannot hold the desk, the study can."""
+    from types import SimpleNamespace
+
+    from roomfit.rules.catalog import resolve_pieces
+    from roomfit.solve.search import _advice
+    from roomfit.solve.tally import Clock
+
+    plan = loads_plan("""
+roomfit_plan = 1
+name = "Study with a closet (invented)"
+[[rooms]]
+id = "study"
+use = "study"
+outline = [[0, 0], [3000, 0], [3000, 3000], [0, 3000]]
+[[rooms]]
+id = "closet"
+use = "storage"
+outline = [[3000, 0], [3900, 0], [3900, 900], [3000, 900]]
+[[doors]]
+id = "d-in"
+rooms = ["study", "outside"]
+at = [1500, 0]
+width = 900
+leaf = "none"
+[[doors]]
+id = "d-closet"
+rooms = ["closet", "study"]
+at = [3000, 450]
+width = 800
+leaf = "none"
+[[furniture]]
+id = "desk"
+type = "desk"
+rooms = ["closet", "study"]
+""", "study.toml")
+    rules = rules_for(plan)
+    stuck = SimpleNamespace(found=(), locked=frozenset(), specs=resolve_pieces(plan, rules))
+    advice = _advice(plan, rules, SolveOptions(candidates=1, time_limit=20), Clock(20), [stuck])
+    assert len(advice) == 1 and "in the study only" in advice[0], advice
+    assert "closet" not in advice[0]

@@ -46,12 +46,11 @@ from roomfit.rules.sets import RuleSet
 from roomfit.solve.building import BuildingFinding, building_findings, excused
 from roomfit.solve.explain import Explanation, Fix, explain, precheck
 from roomfit.solve.group import (
-    DIFFER_PIECES,
-    MOVE,
     GroupSearch,
     judge,
     routines_of,
 )
+from roomfit.solve.notes import fewer, held_up, several_rooms
 from roomfit.solve.tally import Clock, Counters
 
 if TYPE_CHECKING:
@@ -276,7 +275,7 @@ def solve(plan: Plan, rules: RuleSet, options: SolveOptions | None = None,
                            None, stats())
     searches += [GroupSearch(plan, rules, rooms, group_specs, options, clock, progress, counters,
                              building) for rooms, group_specs in groups]
-    _search(searches, options, clock)
+    _search(searches, options, clock, _ADVICE_SHARE if confirm else 0.0)
     for s, (rooms, group_specs) in zip(searches, groups, strict=True):
         if s.impossible:
             expl = (s.explain_exhausted() if s.sound else
@@ -284,7 +283,9 @@ def solve(plan: Plan, rules: RuleSet, options: SolveOptions | None = None,
             expl = _confirmed(plan, rules, options, expl, clock) if confirm else expl
             return SolveResult(Status.IMPOSSIBLE, (), expl, stats(), building=building)
     if not all(s.found for s in searches):
-        return SolveResult(Status.TIMEOUT, (), None, stats(), _held_up(plan, searches), building)
+        advice = _advice(plan, rules, options, clock, searches) if confirm else ()
+        return SolveResult(Status.TIMEOUT, (), None, stats(), held_up(plan, searches) + advice,
+                           building)
     candidates = _combine(plan, rules, searches, options.candidates, counters, building)
     if not candidates:
         return SolveResult(Status.TIMEOUT, (), None, stats(),
@@ -293,13 +294,16 @@ def solve(plan: Plan, rules: RuleSet, options: SolveOptions | None = None,
     # "optimal" when every candidate is proven optimal (under the diversity rules)
     status = Status.OPTIMAL if all(c.optimal for c in candidates) else Status.FOUND
     return SolveResult(status, tuple(candidates), None, stats(),
-                       _fewer(plan, searches, options.candidates, len(candidates)), building)
+                       fewer(plan, searches, options.candidates, len(candidates)), building)
 
 
-def _search(searches: list[GroupSearch], options: SolveOptions, clock: Clock) -> None:
+def _search(searches: list[GroupSearch], options: SolveOptions, clock: Clock,
+            keep: float) -> None:
     """The phases of the search over every group: first one layout for every group (a valid
     arrangement of the whole flat), then the alternatives, each taken at once; then the
-    lower bounds, and every layout taken at once improved with the time left."""
+    lower bounds, and every layout taken at once improved with the time left. A group
+    still without a layout after its share searches on, leaving ``keep`` of the time left
+    for confirming advice when it holds pieces allowed in several rooms (``_advice``)."""
     lanes = max(1, options.workers)
     for s in searches:
         s.work_share = min(1.0, lanes / len(searches))
@@ -307,8 +311,8 @@ def _search(searches: list[GroupSearch], options: SolveOptions, clock: Clock) ->
     for s in searches:
         s.quick = more
     _phase(searches, lanes, clock, 1, _FIRST_PHASE_SHARE if more else _SEARCH_SHARE)
-    if not all(s.found or s.exhausted for s in searches):
-        _phase(searches, lanes, clock, 1, 1.0)  # a group without a layout keeps searching
+    if not all(s.found or s.exhausted for s in searches):  # a group without a layout
+        _phase(searches, lanes, clock, 1, 1.0 - (keep if several_rooms(searches) else 0.0))
     if more and all(s.found for s in searches):
         _phase(searches, lanes, clock, options.candidates, 1.0)
     for s in searches:
@@ -364,54 +368,6 @@ def _within_reach(plan: Plan) -> None:
                 plan.name)
 
 
-def _held_up(plan: Plan, searches: list[GroupSearch]) -> tuple[str, ...]:
-    """What held up each group of rooms that found no layout in time: its rooms and pieces,
-    the rules its failed layouts broke and the pieces named most often next to a failure,
-    and the pieces allowed in several rooms (they join rooms into one larger search)."""
-    out = []
-    for s in searches:
-        if s.found:
-            continue
-        rooms = ", ".join(plan.room(r).label for r in s.rooms)
-        named: dict[str, int] = {}
-        for c in s.sound:
-            for p in c.named:
-                named[p] = named.get(p, 0) + 1
-        top = sorted(named, key=lambda p: -named[p])[:3]
-        line = (f"The search in the {rooms} ({len(s.specs)} pieces) found no layout that passes "
-                f"in time")
-        if s.sound:
-            line += (f": {len(s.sound)} layouts failed the audit ({', '.join(sorted(s.failed_rules))}), "
-                     f"most often next to {', '.join(top)}")
-        multi = [f"{sp.label or sp.id} ({' or '.join(plan.room(r).label for r in sp.rooms)})"
-                 for sp in s.specs if len(sp.rooms) > 1 and sp.id not in s.locked]
-        if multi:
-            line += f"; allowed in several rooms, these join the rooms into one search: {', '.join(multi)}"
-        out.append(line + ".")
-    return tuple(out)
-
-
-def _fewer(plan: Plan, searches: list[GroupSearch], wanted: int, got: int) -> tuple[str, ...]:
-    """Why fewer than ``wanted`` candidates came back (empty when all did)."""
-    if got >= wanted:
-        return ()
-    out = [f"{got} of the {wanted} arrangements asked for:"]
-    for s in searches:
-        if len(s.found) >= wanted:
-            continue
-        rooms = ", ".join(plan.room(r).label for r in s.rooms)
-        if s.exhausted:
-            need = min(DIFFER_PIECES, len([p for p in s.specs if p.id not in s.locked]))
-            out.append(f"the {rooms} {'has' if len(s.rooms) == 1 else 'have'} no further "
-                       f"arrangement that passes every rule and differs from the earlier ones in "
-                       f"at least {need} piece{'s' if need != 1 else ''} (moved {MOVE} mm or "
-                       f"more, turned, or in another room): proven, the search ran out of layouts")
-        else:
-            out.append(f"the time limit ended the search for more in the {rooms} "
-                       f"({len(s.found)} found there)")
-    return tuple(out)
-
-
 def _combine(plan: Plan, rules: RuleSet, searches: list[GroupSearch], wanted: int,
              counters: Counters, building: tuple[BuildingFinding, ...]) -> list[Candidate]:
     """Candidate i takes the i-th layout of every group (the last one where a group has fewer);
@@ -441,6 +397,36 @@ def _combine(plan: Plan, rules: RuleSet, searches: list[GroupSearch], wanted: in
                             c.objective))
     return [replace(c, rank=i) for i, c in enumerate(out)]
 
+
+
+#: Share of the time left that a search without a layout keeps for confirming advice.
+_ADVICE_SHARE = 0.25
+
+
+def _advice(plan: Plan, rules: RuleSet, options: SolveOptions, clock: Clock,
+            searches: list[GroupSearch]) -> tuple[str, ...]:
+    """Advice on a search the time limit ended, each line confirmed by a solve of the changed
+    plan in the time kept for it: a piece allowed in several rooms joins those rooms into
+    one larger search, so it is given one of them (up to ``_TRIALS`` solves; one line per
+    piece, for the first room that gives an arrangement passing every rule)."""
+    trials = [(sp, room) for sp in several_rooms(searches) for room in sp.rooms][:_TRIALS]
+    out: list[str] = []
+    done: set[str] = set()
+    for i, (sp, room) in enumerate(trials):
+        left = clock.deadline - time.monotonic()
+        if left < 0.5 or sp.id in done:
+            continue
+        furniture = tuple(replace(p, rooms=(room,)) if p.id == sp.id else p
+                          for p in plan.furniture)
+        got = solve(replace(plan, furniture=furniture), rules,
+                    replace(options, candidates=1, time_limit=left / (len(trials) - i)),
+                    confirm=False)
+        if got.candidates and got.compliant:
+            done.add(sp.id)
+            out.append(f"Advice: allow {sp.label or sp.id} in the {plan.room(room).label} only: "
+                       f"a solve of that change found an arrangement that passes every rule "
+                       f"in {got.stats.elapsed:.1f} s; run again with it.")
+    return tuple(out)
 
 
 #: Fixes an explanation proposes that are solved at most, and seconds each solve may take.
