@@ -16,7 +16,7 @@ import subprocess
 import sys
 import time
 import urllib.request
-from collections.abc import Iterator
+from collections.abc import Callable, Iterator
 from pathlib import Path
 
 import pytest
@@ -68,6 +68,23 @@ def _settle(tab: object, timeout_s: float = 60) -> None:
     tab.wait_for_load_state("networkidle", timeout=timeout_s * 1000)  # type: ignore[attr-defined]
     running = tab.locator('[data-testid="stStatusWidget"]')  # type: ignore[attr-defined]
     running.wait_for(state="hidden", timeout=timeout_s * 1000)
+
+
+def _until(tab: object, act: Callable[[], object], then: object, tries: int = 3) -> None:
+    """Do ``act`` (a click) and wait until ``then`` (a locator) shows; on a loaded machine a
+    click that lands while the page reruns can be dropped, so it is made again (up to
+    ``tries`` times) only when the page did not take it."""
+    from playwright.sync_api import expect
+
+    for _ in range(tries):
+        act()
+        _settle(tab)
+        try:
+            expect(then).to_be_visible(timeout=20_000)  # type: ignore[arg-type]
+            return
+        except AssertionError:
+            continue
+    expect(then).to_be_visible()  # type: ignore[arg-type]
 
 
 @pytest.fixture
@@ -265,17 +282,8 @@ def test_work_on_the_page_in_a_real_browser(server: str, tmp_path: Path) -> None
             expect(image).to_be_visible()
 
             def click(x: int, y: int, then: str) -> None:
-                """Click the scan and wait until the page says ``then``; a click the
-                component dropped while it redrew the scan (a loaded machine) is made again."""
-                for _ in range(3):
-                    image.click(position={"x": x, "y": y})
-                    _settle(tab)
-                    try:
-                        expect(panel.get_by_text(then)).to_be_visible(timeout=20_000)
-                        return
-                    except AssertionError:
-                        continue
-                expect(panel.get_by_text(then)).to_be_visible()
+                _until(tab, lambda: image.click(position={"x": x, "y": y}),
+                       panel.get_by_text(then))
 
             click(100, 600, "Ends of the known length clicked: 1 of 2")
             click(700, 600, "Ends of the known length clicked: 2 of 2")
@@ -292,16 +300,15 @@ def test_work_on_the_page_in_a_real_browser(server: str, tmp_path: Path) -> None
                 _settle(tab)
                 for k, (x, y) in enumerate(corners, start=1):
                     click(x, y, f"{k} corners clicked")
-                panel.get_by_role("button", name="Close this room").click()
-                _settle(tab)
+                _until(tab, panel.get_by_role("button", name="Close this room").click,
+                       panel.get_by_text("0 corners clicked"))
             tab.screenshot(path=str(shots / "4-traced.png"), full_page=True)
             panel.get_by_label("Plan name").fill("Traced flat")
             panel.get_by_label("Plan name").press("Enter")
             _settle(tab)
-            panel.get_by_role("button", name="Open the traced rooms as the plan").click()
-            _settle(tab)
+            _until(tab, panel.get_by_role("button", name="Open the traced rooms as the plan").click,
+                   tab.get_by_text("Opened trace over scan.png"))
             tab.screenshot(path=str(shots / "4b-opened.png"), full_page=True)
-            expect(tab.get_by_text("Opened trace over scan.png")).to_be_visible()
             tab.get_by_role("tab", name="The apartment").click()
             _settle(tab)
             table = tab.get_by_role("tabpanel", name="The apartment").get_by_test_id("stTable")
