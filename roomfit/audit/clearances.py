@@ -17,7 +17,7 @@ from shapely.ops import unary_union
 
 from roomfit.audit import geometry as geo
 from roomfit.audit.findings import Finding, cm2, outline, point, source_of
-from roomfit.audit.quality import back_edge, wall_share
+from roomfit.audit.group_measures import back_edge, wall_share
 from roomfit.audit.walkway import TOUCH_MM2, Floor, standing
 from roomfit.rules.groups import param
 
@@ -33,7 +33,7 @@ __all__ = [
 
 #: Share of a piece's back edge that must lie on the room boundary (``wall.against``): the
 #: ``wall.share`` value of ``data/groups.toml`` (its gap ``wall.gap``), measured by
-#: :func:`roomfit.audit.quality.wall_share`, the one "against a wall" measure.
+#: :func:`roomfit.audit.group_measures.wall_share`, the one "against a wall" measure.
 WALL_SHARE = param("wall.share").value
 
 

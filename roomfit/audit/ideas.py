@@ -20,7 +20,7 @@ from dataclasses import dataclass
 from shapely import Point
 
 from roomfit.audit.geometry import footprint, room_polygon, side_direction, window_segment
-from roomfit.audit.quality import compass
+from roomfit.audit.group_measures import compass
 from roomfit.plan.data import Placement, Plan
 from roomfit.rules.catalog import PieceSpec, resolve_pieces
 from roomfit.rules.sets import RuleSet

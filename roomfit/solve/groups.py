@@ -8,7 +8,7 @@ a bed head under a window; this module weighs each unmet group rule by the group
 group rule the room allows beats one that does not), and adds what the relations alone do
 not say:
 
-- a nightstand stands on a side the bed is used from (:func:`roomfit.audit.quality.used_long_sides`);
+- a nightstand stands on a side the bed is used from (:func:`roomfit.audit.group_measures.used_long_sides`);
 - seats of a conversation group stand within speaking distance of another seat (L1 between
   front middles, which bounds the audit's straight-line distance from above) and neither
   behind the other's back (the audit's ``group.talk_turn``).
@@ -28,7 +28,7 @@ from ortools.sat.python import cp_model
 
 from roomfit.audit.geometry import room_polygon, side_direction
 from roomfit.audit.ideas import is_main
-from roomfit.audit.quality import used_long_sides
+from roomfit.audit.group_measures import used_long_sides
 from roomfit.plan.data import Placement, Plan
 from roomfit.rules.groups import param, solver_weight
 
