@@ -278,7 +278,7 @@ def _cmd_solve(args: argparse.Namespace) -> int:
         walking = f"{routes.walking_m_per_day:.0f} m/day"
         print(f"{c.rank + 1:>9}  {c.objective:>9g}  {gap:>13}  {walking:>10}  {check:<7}  "
               f"{', '.join(files)}")
-    _print_ideas(plan, rules, result.candidates)
+    _print_ideas(plan, rules, result.candidates, result.possible)
     if result.building:
         print(words.headline)
     for line in words.details:
@@ -316,9 +316,10 @@ def _finish_run(run: RunFolder, args: argparse.Namespace, rules: RuleSet, outcom
     print(f"run written to {folder}/ ({len(run.files)} files and manifest.json)")
 
 
-def _print_ideas(plan: Plan, rules: RuleSet, candidates: Sequence) -> None:
-    """Each candidate's idea in one line, its unmet group rules (measured, with targets) and,
-    when the plan has furniture placed as it stands, the moving list from there."""
+def _print_ideas(plan: Plan, rules: RuleSet, candidates: Sequence, possible: Sequence = ()) -> None:
+    """Each candidate's idea in one line, its unmet group rules (measured, with targets), for
+    the first one what the group-rule check found of its misses (``possible``) and, when the
+    plan has furniture placed as it stands, the moving list from there."""
     from roomfit.audit.ideas import describe, moves
     from roomfit.audit.quality import Kind, quality
 
@@ -328,6 +329,8 @@ def _print_ideas(plan: Plan, rules: RuleSet, candidates: Sequence) -> None:
         print(f"candidate {c.rank + 1}: {describe(furnished, rules)}")
         print(f"  group rules met {sum(q.ok for q in groups)} of {len(groups)}"
               + "".join(f"\n  ! {q.text}" for q in groups if not q.ok))
+        if c.rank == 0 and possible:
+            print("  its missed group rules, checked:" + "".join(f"\n    - {p.text}" for p in possible))
         if plan.layout:
             todo = moves(plan, furnished, rules)
             print("  moving list from today's arrangement:" + ("" if todo else " nothing moves"))

@@ -22,8 +22,8 @@ STAGE = {
     "rules": 2, "rules.sets": 2, "rules.catalog": 2, "rules.groups": 2,
     # the reader validates piece types and rule-set names against the rules stage
     "plan.fields": 3, "plan.openings": 3, "plan.read": 3, "plan.write": 3,
-    "audit": 3, "audit.geometry": 3, "audit.marks": 3, "audit.group_measures": 3, "audit.group_rules": 3, "audit.quality": 3,
-    "audit.ideas": 3,
+    "audit": 3, "audit.geometry": 3, "audit.marks": 3, "audit.group_measures": 3,
+    "audit.group_rules": 3, "audit.quality": 3, "audit.ideas": 3,
     # the IFC import: neutral floor data, then the reader (sole user of ifcopenshell) and
     # the pure-shapely steps that make a Plan of it
     "plan.floordata": 1, "plan.ifc_read": 3, "plan.floor_base": 3, "plan.floor_doors": 3,
@@ -32,7 +32,8 @@ STAGE = {
     "audit.passage": 4, "audit.clearances": 4, "audit.turning": 4, "audit.circulation": 4,
     "audit.alcove": 4, "audit.places": 4, "audit.bottleneck": 4, "audit.visibility": 4,
     "audit.check": 4, "audit.routes": 4,
-    "solve": 5, "solve.rooms": 5, "solve.vars": 5, "solve.groups": 5, "solve.terms": 5,
+    "solve": 5, "solve.rooms": 5, "solve.vars": 5, "solve.groups": 5, "solve.hard_rules": 5,
+    "solve.terms": 5,
     "solve.model": 5, "solve.symmetry": 5, "solve.solution": 5, "solve.construct": 5,
     "solve.bound": 5, "solve.tally": 5,
     "solve.cuts": 5,

@@ -27,15 +27,16 @@ from typing import TYPE_CHECKING
 from ortools.sat.python import cp_model
 
 from roomfit.audit.geometry import room_polygon, side_direction
-from roomfit.audit.ideas import is_main
 from roomfit.audit.group_measures import used_long_sides
+from roomfit.audit.ideas import is_main
 from roomfit.plan.data import Placement, Plan
 from roomfit.rules.groups import param, solver_weight
 
 if TYPE_CHECKING:
     from roomfit.solve.vars import PieceVars
 
-__all__ = ["unmet_terms", "relation_group_terms", "conversation_terms", "main_differs"]
+__all__ = ["unmet_terms", "relation_group_terms", "conversation_terms", "main_differs", "doubled_mid",
+           "dot"]
 
 
 def unmet_terms(unmet: cp_model.LinearExprT) -> list[cp_model.LinearExprT]:
@@ -49,7 +50,7 @@ def _centre2(pv: PieceVars) -> tuple[cp_model.LinearExpr, cp_model.LinearExpr]:
             cp_model.LinearExpr.weighted_sum([pv.y, pv.depth_expr()], [2, 1]))
 
 
-def _doubled_mid(pv: PieceVars, side: str) -> tuple[cp_model.LinearExpr, cp_model.LinearExpr]:
+def doubled_mid(pv: PieceVars, side: str) -> tuple[cp_model.LinearExpr, cp_model.LinearExpr]:
     """Twice the middle of ``side`` of the piece, as linear expressions (x, y)."""
     cx, cy = _centre2(pv)
     ext = pv.spec.depth if side in ("front", "back") else pv.spec.width
@@ -60,7 +61,7 @@ def _doubled_mid(pv: PieceVars, side: str) -> tuple[cp_model.LinearExpr, cp_mode
             cp_model.LinearExpr.weighted_sum([cy, *lits], [1, *ey]))
 
 
-def _dot(u: tuple[int, int], a: tuple[cp_model.LinearExpr, cp_model.LinearExpr],
+def dot(u: tuple[int, int], a: tuple[cp_model.LinearExpr, cp_model.LinearExpr],
          b: tuple[cp_model.LinearExpr, cp_model.LinearExpr]) -> cp_model.LinearExpr:
     """``u . (a - b)`` for doubled points ``a`` and ``b``."""
     return cp_model.LinearExpr.weighted_sum([a[0], b[0], a[1], b[1]], [u[0], -u[0], u[1], -u[1]])
@@ -79,7 +80,7 @@ def _on_used_side(m: cp_model.CpModel, stand: PieceVars, bed: PieceVars) -> cp_m
     for (_, rot), lit in bed.alts.items():
         p = m.new_bool_var("")
         m.add_implication(p, lit)
-        m.add(_dot(side_direction(used[0], rot), stand_c, bed_c) >= 1).only_enforce_if(p)
+        m.add(dot(side_direction(used[0], rot), stand_c, bed_c) >= 1).only_enforce_if(p)
         options.append(p)
     m.add_bool_or(options).only_enforce_if(ok)
     return ok
@@ -105,15 +106,15 @@ def _talk_pair(m: cp_model.CpModel, a: PieceVars, b: PieceVars, far: int) -> cp_
     """A literal that implies: the front middles of ``a`` and ``b`` are within ``far`` mm
     (L1) and neither seat stands behind the other's back."""
     ok = m.new_bool_var("")
-    fa, fb = _doubled_mid(a, "front"), _doubled_mid(b, "front")
+    fa, fb = doubled_mid(a, "front"), doubled_mid(b, "front")
     dx, dy = m.new_int_var(0, 10_000_000, ""), m.new_int_var(0, 10_000_000, "")
-    m.add_abs_equality(dx, _dot((1, 0), fa, fb))
-    m.add_abs_equality(dy, _dot((0, 1), fa, fb))
+    m.add_abs_equality(dx, dot((1, 0), fa, fb))
+    m.add_abs_equality(dy, dot((0, 1), fa, fb))
     m.add(dx + dy <= 2 * far).only_enforce_if(ok)
     for me, other in ((a, fb), (b, fa)):
-        back = _doubled_mid(me, "back")
+        back = doubled_mid(me, "back")
         for (_, rot), lit in me.alts.items():
-            m.add(_dot(side_direction("front", rot), other, back) >= 0).only_enforce_if([ok, lit])
+            m.add(dot(side_direction("front", rot), other, back) >= 0).only_enforce_if([ok, lit])
     return ok
 
 

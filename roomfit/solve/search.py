@@ -172,6 +172,7 @@ class SolveResult:
     stats: SolveStats
     notes: tuple[str, ...] = ()
     building: tuple[BuildingFinding, ...] = ()
+    possible: tuple[Possibility, ...] = ()
 
     @property
     def compliant(self) -> bool:
@@ -231,8 +232,11 @@ def solve(plan: Plan, rules: RuleSet, options: SolveOptions | None = None,
     # the final audits (widths measured), route scores and group checks of the combined
     # candidates take some 0.2 s each on the samples, and up to 1.3 s each on a generated
     # three-room flat on a loaded machine (the 20 s solve ended at 21.4 s with 0.25 s each)
-    clock = Clock(options.time_limit, min(0.2 * options.time_limit, 0.6 * options.candidates))
     specs = resolve_pieces(plan, rules)
+    audit_reserve = min(0.2 * options.time_limit, 0.6 * options.candidates)
+    # a share for settling the first candidate's missed group rules (roomfit.solve.possible)
+    settling = SHARE * options.time_limit if confirm and has_groups(specs) else 0.0
+    clock = Clock(options.time_limit, audit_reserve + settling)
     counters = Counters()
     # small groups first: they finish early and leave their unused time to the larger ones
     groups = sorted(components(plan, specs), key=lambda g: len(g[1]))
@@ -291,6 +295,14 @@ def solve(plan: Plan, rules: RuleSet, options: SolveOptions | None = None,
         return SolveResult(Status.TIMEOUT, (), None, stats(),
                            ("every combined arrangement failed the audit of the whole flat",),
                            building)
+    possible: tuple[Possibility, ...] = ()
+    if settling:
+        better, possible = settle(plan, rules, groups, candidates[0].layout,
+                                  [c.layout for c in candidates[1:]], options,
+                                  min(clock.deadline - audit_reserve,
+                                      time.monotonic() + settling), building)
+        if better is not None:
+            candidates[0] = _rescored(plan, rules, candidates[0], better)
     # "optimal" when every candidate is proven optimal (under the diversity rules)
     status = Status.OPTIMAL if all(c.optimal for c in candidates) else Status.FOUND
     return SolveResult(status, tuple(candidates), None, stats(),

@@ -1,0 +1,284 @@
+"""A missed functional-group rule as a hard constraint of the placement model, in two forms.
+
+The layout-quality audit (``roomfit.audit.quality``) judges a finished arrangement with exact
+geometry; the placement model speaks in linear constraints. To ask "can this room have the
+rule at all?" (:mod:`roomfit.solve.possible`) a rule is written twice:
+
+- **necessary** (``Form.NECESSARY``): every arrangement the audit passes for the rule meets
+  it. Added to the *relaxed* model (every arrangement the clearance audit passes is one of
+  its solutions), a proof of infeasibility proves that no arrangement of those rooms passes
+  the clearance audit and meets the rule: "not possible in this room".
+- **sufficient** (``Form.SUFFICIENT``): every arrangement that meets it passes the audit's
+  rule for that pair of pieces (the audit still judges the whole arrangement). Added to the
+  search, it looks for an arrangement that has the rule.
+
+Each form is a literal made true (``model.add(lit == 1)``) by the caller. The rules, by the
+audit's ids (pairs the audit measures on one pair of pieces go together):
+
+- ``group.view`` + ``group.view_angle``: some seat of the viewing group and the screen stand
+  front to front in one room (with turns in steps of 90 degrees, two fronts each within
+  15 degrees of the line between them face each other exactly). With ``A`` the distance
+  between the fronts and ``L`` the offset of the centre lines, the audit asks
+  ``lo <= sqrt(A^2 + L^2) <= hi`` and ``atan(L / A) <= 15 deg``. Necessary:
+  ``lo cos 15 <= A <= hi`` and ``L <= A tan 15`` (tangent rounded up). Sufficient:
+  ``lo <= A <= hi cos 15`` and ``L <= A tan 15`` (rounded down).
+- ``group.reach`` + ``group.reach_axis``: the coffee table beyond the front of some seat of
+  the related category, the gap within :func:`~roomfit.audit.group_measures.reach_range`
+  and the centres within ``reach.off_axis``: the audit's own measure (both forms alike).
+- ``group.bedside``: necessary, the nightstand's box within ``gap_max`` (along x and along y,
+  which the straight-line distance bounds) of the head half of a used long side of a bed of
+  the related category; sufficient, beyond that side ``gap_min`` to ``gap_max`` with its
+  centre on the head half.
+- ``group.bed_window``: where the bed's head is flush with a wall, the head's span clear of
+  every window on that wall (both forms).
+- ``group.talk`` + ``group.talk_turn``: some other seat of the conversation group in the
+  room, its front middle within speaking distance of this seat's (necessary: along x and
+  along y; sufficient: the L1 distance) and not behind this seat's back (exact).
+
+A piece whose front matters (seats, screens) and that the model turns only in half turns
+(symmetric pieces) makes the necessary form unsound: :func:`rule_literal` then says so.
+"""
+
+from __future__ import annotations
+
+import math
+from enum import StrEnum
+
+from ortools.sat.python import cp_model
+
+from roomfit.audit.geometry import side_direction
+from roomfit.audit.group_measures import reach_range, used_long_sides, view_range
+from roomfit.rules.groups import param
+from roomfit.solve.groups import dot, doubled_mid
+from roomfit.solve.rooms import RoomGeo
+from roomfit.solve.vars import PieceVars
+
+__all__ = ["Form", "FAMILIES", "family", "rule_literal"]
+
+_SCALE = 10_000  # tangents as whole ten-thousandths
+
+
+class Form(StrEnum):
+    """Which side of the audit's rule a constraint lies on (see the module text)."""
+
+    NECESSARY = "necessary"
+    SUFFICIENT = "sufficient"
+
+
+#: The audit rules measured on one pair of pieces, taken together, by their first rule.
+FAMILIES: dict[str, tuple[str, ...]] = {
+    "group.view": ("group.view", "group.view_angle"),
+    "group.reach": ("group.reach", "group.reach_axis"),
+    "group.bedside": ("group.bedside",),
+    "group.bed_window": ("group.bed_window",),
+    "group.talk": ("group.talk", "group.talk_turn"),
+}
+
+
+def family(rule: str) -> str | None:
+    """The family (:data:`FAMILIES` key) an audit rule belongs to; None when the model cannot
+    state it."""
+    return next((k for k, rules in FAMILIES.items() if rule in rules), None)
+
+
+def _lo(pv: PieceVars, axis: int) -> cp_model.IntVar:
+    return pv.x if axis == 0 else pv.y
+
+
+def _axis(direction: tuple[int, int]) -> tuple[int, int]:
+    """(axis, sign) of a unit direction: axis 0 is x, 1 is y."""
+    return (0, direction[0]) if direction[0] else (1, direction[1])
+
+
+def _any(m: cp_model.CpModel, options: list[cp_model.IntVar]) -> cp_model.IntVar:
+    """A literal that implies one of ``options`` (false when there are none)."""
+    ok = m.new_bool_var("")
+    if options:
+        m.add_bool_or(options).only_enforce_if(ok)
+    else:
+        m.add(ok == 0)
+    return ok
+
+
+def _option(m: cp_model.CpModel, *lits: cp_model.IntVar | list[cp_model.IntVar]) -> cp_model.IntVar:
+    """A new literal implying each literal of ``lits`` (a list: one of its literals)."""
+    p = m.new_bool_var("")
+    for lit in lits:
+        if isinstance(lit, list):
+            m.add_bool_or(lit).only_enforce_if(p)
+        else:
+            m.add_implication(p, lit)
+    return p
+
+
+def _in(pv: PieceVars, room: str) -> list[cp_model.IntVar]:
+    return [lit for (r, _), lit in pv.alts.items() if r == room]
+
+
+def _turns_fully(pv: PieceVars) -> bool:
+    """True when the model tries every quarter turn of the piece (or it is locked)."""
+    return pv.locked or len({rot for _, rot in pv.alts}) == 4
+
+
+def _view(m: cp_model.CpModel, seat: PieceVars, screen: PieceVars, form: Form) -> cp_model.IntVar:
+    lo, hi = view_range(seat.spec, screen.spec)
+    if hi <= 0:
+        return _any(m, [])
+    theta = math.radians(param("view.off_axis").value)
+    if form == Form.NECESSARY:
+        a_min, a_max = math.floor(lo * math.cos(theta)), hi
+        tan = math.ceil(math.tan(theta) * _SCALE)
+    else:
+        a_min, a_max = lo, math.floor(hi * math.cos(theta))
+        tan = math.floor(math.tan(theta) * _SCALE)
+    options = []
+    for (r, rot), lit in seat.alts.items():
+        srot = (rot + 180) % 360
+        tlit = screen.alts.get((r, srot))
+        if tlit is None:
+            continue
+        p = _option(m, lit, tlit)
+        axis, sign = _axis(side_direction("front", rot))
+        seat_hi = _lo(seat, axis) + seat.size(rot)[axis]
+        screen_hi = _lo(screen, axis) + screen.size(srot)[axis]
+        gap = (_lo(screen, axis) - seat_hi) if sign > 0 else (_lo(seat, axis) - screen_hi)
+        b = 1 - axis
+        across2 = (2 * _lo(seat, b) + seat.size(rot)[b]) - (2 * _lo(screen, b) + screen.size(srot)[b])
+        m.add(gap >= max(1, a_min)).only_enforce_if(p)
+        m.add(gap <= a_max).only_enforce_if(p)
+        m.add(_SCALE * across2 <= 2 * tan * gap).only_enforce_if(p)
+        m.add(-_SCALE * across2 <= 2 * tan * gap).only_enforce_if(p)
+        options.append(p)
+    return _any(m, options)
+
+
+def _reach(m: cp_model.CpModel, table: PieceVars, seat: PieceVars) -> cp_model.IntVar:
+    lo, hi = reach_range(table.spec, seat.spec)
+    tol = param("reach.off_axis").mm
+    ends = table.ends(m)
+    options = []
+    for (r, rot), lit in seat.alts.items():
+        tlits = _in(table, r)
+        if not tlits:
+            continue
+        p = _option(m, lit, tlits)
+        axis, sign = _axis(side_direction("front", rot))
+        seat_hi = _lo(seat, axis) + seat.size(rot)[axis]
+        gap = (_lo(table, axis) - seat_hi) if sign > 0 else (_lo(seat, axis) - ends[axis])
+        b = 1 - axis
+        t2 = 2 * _lo(table, b) + (table.width_expr() if b == 0 else table.depth_expr())
+        across2 = (2 * _lo(seat, b) + seat.size(rot)[b]) - t2
+        for c in (gap >= lo, gap <= hi, across2 <= 2 * tol, -across2 <= 2 * tol):
+            m.add(c).only_enforce_if(p)
+        options.append(p)
+    return _any(m, options)
+
+
+def _bedside(m: cp_model.CpModel, stand: PieceVars, bed: PieceVars, form: Form) -> cp_model.IntVar:
+    g_lo, g_hi = stand.spec.gap_min, stand.spec.gap_max
+    s_ends = stand.ends(m)
+    options = []
+    for (r, rot), lit in bed.alts.items():
+        slits = _in(stand, r)
+        if not slits:
+            continue
+        ha, hsign = _axis(side_direction("back", rot))
+        length = bed.size(rot)[ha]
+        for side in used_long_sides(bed.spec):
+            p = _option(m, lit, slits)
+            sa, ssign = _axis(side_direction(side, rot))
+            bed_hi = {a: _lo(bed, a) + bed.size(rot)[a] for a in (0, 1)}
+            line = bed_hi[sa] if ssign > 0 else _lo(bed, sa)
+            if form == Form.SUFFICIENT:
+                gap = (_lo(stand, sa) - line) if ssign > 0 else (line - s_ends[sa])
+                mid2 = 2 * _lo(stand, ha) + (stand.width_expr() if ha == 0 else stand.depth_expr())
+                head = 2 * _lo(bed, ha) if hsign < 0 else 2 * bed_hi[ha] - length
+                cons = [gap >= g_lo, gap <= g_hi, mid2 >= head, mid2 <= head + length]
+            else:  # the box within g_hi of the head half, along each axis
+                h0 = _lo(bed, ha) if hsign < 0 else bed_hi[ha] - length // 2 - 1
+                h1 = _lo(bed, ha) + (length + 1) // 2 if hsign < 0 else bed_hi[ha]
+                cons = [_lo(stand, sa) <= line + g_hi, s_ends[sa] >= line - g_hi,
+                        _lo(stand, ha) <= h1 + g_hi, s_ends[ha] >= h0 - g_hi]
+            for c in cons:
+                m.add(c).only_enforce_if(p)
+            options.append(p)
+    return _any(m, options)
+
+
+def _bed_window(m: cp_model.CpModel, bed: PieceVars, geo: dict[str, RoomGeo]) -> cp_model.IntVar:
+    ok = m.new_bool_var("")
+    for (r, rot), choices in bed.walls.items():
+        walls = [w for w in geo[r].walls if w.outward == side_direction("back", rot)]
+        for on, wall in zip(choices, walls, strict=True):
+            for w, lo, hi, _, _ in geo[r].windows:
+                if w != wall:
+                    continue
+                along = bed.x if wall.axis == "y" else bed.y
+                span = bed.size(rot)[0] if wall.axis == "y" else bed.size(rot)[1]
+                left, right = m.new_bool_var(""), m.new_bool_var("")
+                m.add(along + span <= lo).only_enforce_if(left)
+                m.add(along >= hi).only_enforce_if(right)
+                m.add_bool_or([left, right, on.negated(), ok.negated()])
+    return ok
+
+
+def _talk(m: cp_model.CpModel, seat: PieceVars, other: PieceVars, far: int,
+          form: Form) -> cp_model.IntVar:
+    fo = doubled_mid(other, "front")
+    options = []
+    for (r, rot), lit in seat.alts.items():
+        olits = _in(other, r)
+        if not olits:
+            continue
+        p = _option(m, lit, olits)
+        u = side_direction("front", rot)
+        w, d = seat.size(rot)
+        c2 = (2 * seat.x + w, 2 * seat.y + d)
+        fa = (c2[0] + u[0] * seat.spec.depth, c2[1] + u[1] * seat.spec.depth)
+        back = (c2[0] - u[0] * seat.spec.depth, c2[1] - u[1] * seat.spec.depth)
+        dx, dy = fo[0] - fa[0], fo[1] - fa[1]
+        if form == Form.NECESSARY:
+            cons = [dx <= 2 * far, -dx <= 2 * far, dy <= 2 * far, -dy <= 2 * far]
+        else:
+            cons = [s * dx + t * dy <= 2 * far for s in (1, -1) for t in (1, -1)]
+        cons.append(dot(u, fo, back) >= 0)
+        for c in cons:
+            m.add(c).only_enforce_if(p)
+        options.append(p)
+    return _any(m, options)
+
+
+def rule_literal(m: cp_model.CpModel, pieces: list[PieceVars], geo: dict[str, RoomGeo],
+                 rule: str, subject: str, form: Form) -> tuple[cp_model.IntVar, bool] | None:
+    """A literal that implies the rule family of ``rule`` (an audit rule id) for the piece
+    ``subject`` (the first piece the audit's record names: the seat of a viewing or talking
+    pair, the coffee table, the nightstand, the bed), in ``form``; with whether a proof from
+    it is sound (the pieces whose fronts matter are turned every way). None when the model
+    cannot state the rule or ``subject`` is not among ``pieces``."""
+    by_id = {pv.spec.id: pv for pv in pieces}
+    me = by_id.get(subject)
+    fam = family(rule)
+    if me is None or fam is None:
+        return None
+    others = [pv for pv in pieces if pv is not me]
+    if fam == "group.view":
+        screens = [pv for pv in others if "viewing" in pv.spec.groups and pv.spec.screen]
+        seats = [pv for pv in pieces if "viewing" in pv.spec.groups and pv.spec.view_max > 0]
+        lits = [_view(m, s, t, form) for t in screens for s in seats if me in (s, t)]
+        sound = all(_turns_fully(pv) for pv in screens + seats)
+    elif fam == "group.reach":
+        cats = {cat for rel, cat in me.spec.relations if rel == "in_front"}
+        seats = [pv for pv in others if pv.spec.category in cats]
+        lits, sound = [_reach(m, me, s) for s in seats], all(_turns_fully(s) for s in seats)
+    elif fam == "group.bedside":
+        cats = {cat for rel, cat in me.spec.relations if rel == "beside_head"}
+        lits = [_bedside(m, me, b, form) for b in others if b.spec.category in cats]
+        sound = True
+    elif fam == "group.bed_window":
+        lits, sound = [_bed_window(m, me, geo)], True
+    else:
+        far = param("talk.distance").mm
+        seats = [pv for pv in others if "conversation" in pv.spec.groups]
+        lits = [_talk(m, me, s, far, form) for s in seats]
+        sound = _turns_fully(me)
+    return _any(m, lits), sound

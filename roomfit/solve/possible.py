@@ -1,0 +1,275 @@
+"""Can the room have a group rule the first candidate misses? A proof, or a second search.
+
+The search weighs the functional-group rules strongly but keeps them soft
+(:mod:`roomfit.solve.groups`), so a candidate that misses one may do so because the room
+cannot have it or because the search did not reach it. :func:`settle` tells these apart for
+every group rule the first candidate misses, within a declared share of the time limit
+(:data:`SHARE`):
+
+1. **Proof.** The relaxed placement model of the rule's rooms (every arrangement the
+   clearance audit passes is one of its solutions; ``roomfit.solve.model``) with the rule's
+   *necessary* form made hard (:mod:`roomfit.solve.hard_rules`). Infeasible: no arrangement
+   that passes the clearance rules meets the rule, "not possible in this room".
+2. **Second search.** Otherwise the verify-and-cut search of those rooms runs once more with
+   the rule's *sufficient* form made hard, and with it every group rule the arrangement
+   already meets there (so the search looks for the arrangement with one more rule met).
+   An arrangement it finds replaces the rooms' part of the candidate when the
+   whole flat still passes the audit, misses fewer group rules and stays visibly different
+   from the other candidates; one that meets the rule only by missing others is reported, not
+   taken.
+3. Otherwise the miss is stated plainly: not proven impossible, not reached in the time.
+
+Why the rules stay soft in the main search: a rule proven possible for its rooms on its own
+is not proven possible together with the other rules there, nor with the audit's circulation
+checks that the model only approximates; made hard in the main search it could turn a
+furnishable flat into "impossible" or "not found". Here the hard rules live only in side
+searches whose result is taken when the audit passes it, so the main result stands whatever
+they find (completeness kept).
+"""
+
+from __future__ import annotations
+
+import time
+from dataclasses import dataclass, replace
+from enum import StrEnum
+
+from ortools.sat.python import cp_model
+
+from roomfit.audit.ideas import spots, visible_changes
+from roomfit.audit.quality import GroupCheck, Kind, quality
+from roomfit.plan.data import Layout, Placement, Plan
+from roomfit.rules.catalog import PieceSpec
+from roomfit.rules.sets import RuleSet
+from roomfit.solve.building import BuildingFinding, excused
+from roomfit.solve.group import GroupSearch, judge
+from roomfit.solve.hard_rules import FAMILIES, Form, family, rule_literal
+from roomfit.solve.model import build_model, tune
+from roomfit.solve.tally import Clock, Counters
+
+__all__ = ["SHARE", "Reach", "Possibility", "settle", "has_groups"]
+
+#: Share of the solve's time limit kept for settling the first candidate's missed group rules
+#: (proofs and second searches; unused when it misses none).
+SHARE = 0.15
+
+
+class Reach(StrEnum):
+    """What a missed group rule turned out to be."""
+
+    IMPOSSIBLE = "impossible"  # proven: no arrangement passing the clearance rules has it
+    MET = "met"  # a second search met it, and its arrangement was taken
+    POSSIBLE = "possible"  # an arrangement has it, but misses other group rules: not taken
+    OPEN = "open"  # neither proven impossible nor reached in the time
+
+
+@dataclass(frozen=True)
+class Possibility:
+    """The verdict on one missed group rule of the first candidate: the audit's ``rules``
+    (a family measured on one pair), its ``label``, pieces and room, and ``detail`` in words."""
+
+    rules: tuple[str, ...]
+    label: str
+    pieces: tuple[str, ...]
+    room: str
+    reach: Reach
+    detail: str
+
+    @property
+    def text(self) -> str:
+        """One line for a summary: ``"not possible in this room: sofa to tv (...)"``."""
+        lead = {Reach.IMPOSSIBLE: "not possible in this room",
+                Reach.MET: "met by a second search with the rule made hard",
+                Reach.POSSIBLE: "possible in this room, but not taken",
+                Reach.OPEN: "not reached by the search (not proven impossible)"}[self.reach]
+        return f"{lead}: {self.label} ({self.detail})"
+
+
+def has_groups(specs: tuple[PieceSpec, ...] | list[PieceSpec]) -> bool:
+    """True when some piece takes part in a functional group (the check may then run)."""
+    return any(s.groups for s in specs)
+
+
+def _misses(plan: Plan, rules: RuleSet) -> list[GroupCheck]:
+    """The missed group rules, one per rule family and subject piece."""
+    seen: set[tuple[str, str]] = set()
+    out = []
+    for c in quality(plan, rules):
+        key = (family(c.rule) or c.rule, c.pieces[0] if c.pieces else "")
+        if c.kind == Kind.GROUP and not c.ok and key not in seen:
+            seen.add(key)
+            out.append(c)
+    return out
+
+
+def _met(plan: Plan, rules: RuleSet, miss: GroupCheck) -> bool:
+    """True when ``plan`` meets every rule of ``miss``'s family for its subject piece."""
+    fam = FAMILIES.get(family(miss.rule) or "", (miss.rule,))
+    return all(c.ok for c in quality(plan, rules)
+               if c.rule in fam and c.pieces[:1] == miss.pieces[:1])
+
+
+def _failures(plan: Plan, rules: RuleSet) -> int:
+    return sum(not c.ok for c in quality(plan, rules) if c.kind == Kind.GROUP)
+
+
+def _kept(plan: Plan, rules: RuleSet, group: tuple[list[str], list[PieceSpec]]
+          ) -> list[tuple[str, str]]:
+    """The group rules ``plan`` meets in ``group``'s pieces that the model can state, as
+    (rule, subject): a second search keeps them."""
+    ids = {s.id for s in group[1]}
+    out: dict[tuple[str, str], tuple[str, str]] = {}
+    for c in quality(plan, rules):
+        fam = family(c.rule)
+        if c.kind == Kind.GROUP and fam and c.pieces and c.pieces[0] in ids:
+            key = (fam, c.pieces[0])
+            if not c.ok:
+                out[key] = ("", "")
+            out.setdefault(key, (c.rule, c.pieces[0]))
+    return [v for v in out.values() if v[0]]
+
+
+def _group_of(groups: list[tuple[list[str], list[PieceSpec]]],
+              piece: str) -> tuple[list[str], list[PieceSpec]] | None:
+    return next((g for g in groups if any(s.id == piece for s in g[1])), None)
+
+
+def _proof(plan: Plan, rules: RuleSet, group: tuple[list[str], list[PieceSpec]], miss: GroupCheck,
+           grid: int, seconds: float, no_turning: frozenset[str]) -> bool:
+    """True when the relaxed model of ``group`` with the necessary form of ``miss`` is proven
+    infeasible within ``seconds`` (one worker, no objective) and the proof is sound."""
+    rooms, specs = group
+    built = build_model(plan, rules, specs, rooms, grid, strengthen=False, relaxed=True,
+                        objective=False, no_turning=no_turning)
+    got = rule_literal(built.model, built.pieces, built.rooms, miss.rule, miss.pieces[0],
+                       Form.NECESSARY)
+    if got is None or not got[1]:
+        return False
+    built.model.add(got[0] == 1)
+    solver = cp_model.CpSolver()
+    solver.parameters.num_workers = 1
+    solver.parameters.max_time_in_seconds = max(0.05, seconds)
+    tune(solver.parameters)
+    return solver.solve(built.model) == cp_model.INFEASIBLE
+
+
+class _HardSearch(GroupSearch):
+    """The search of one group of rooms with some group rules made hard (sufficient form),
+    each layout visibly different from the other candidates' (``avoid``)."""
+
+    hard: tuple[tuple[str, str], ...] = ()
+    avoid: tuple[dict[str, Placement], ...] = ()
+
+    def _start(self, stage: int) -> None:
+        super()._start(stage)
+        built = self.built
+        assert built is not None
+        movable = [pv for pv in built.pieces if not pv.locked]
+        for where in self.avoid:
+            self._forbid_near(built, movable, where)
+        for rule, subject in self.hard:
+            got = rule_literal(built.model, built.pieces, built.rooms, rule, subject,
+                               Form.SUFFICIENT)
+            if got is not None:
+                built.model.add(got[0] == 1)
+
+
+def settle(plan: Plan, rules: RuleSet, groups: list[tuple[list[str], list[PieceSpec]]],
+           layout: Layout, others: list[Layout], options, deadline: float,
+           building: tuple[BuildingFinding, ...] = ()) -> tuple[Layout | None, tuple[Possibility, ...]]:
+    """Settle every group rule the arrangement ``layout`` misses (see the module text), by
+    ``deadline`` (``time.monotonic()``). ``groups`` are the solve's groups of rooms (rooms
+    and pieces), ``others`` the layouts of the other candidates (a layout taken must stay
+    visibly different from each), ``options`` the solve's options (grid, seed).
+
+    Returns the improved layout (None when none was taken) and one verdict per missed rule
+    family of the arrangement the check began with."""
+    no_turning = frozenset(b.finding.room for b in building
+                           if b.finding.rule == "turning.space" and b.finding.room)
+    current, taken = plan.with_layout(layout), False
+    misses = _misses(current, rules)
+    out: list[Possibility] = []
+    for k, miss in enumerate(misses):
+        fam = family(miss.rule)
+        rules_of = FAMILIES.get(fam or "", (miss.rule,))
+
+        def verdict(reach: Reach, detail: str, m: GroupCheck = miss,
+                    r: tuple[str, ...] = rules_of) -> None:
+            out.append(Possibility(r, m.label, m.pieces, m.room, reach, detail))
+
+        if _met(current, rules, miss):
+            verdict(Reach.MET, "met once another rule was won")
+            continue
+        if miss.rule == "group.desk_height":
+            verdict(Reach.IMPOSSIBLE, f"the desk's own top height, {miss.shown}: another desk "
+                    "or a height-adjustable one")
+            continue
+        group = _group_of(groups, miss.pieces[0]) if miss.pieces else None
+        if fam is None or group is None:
+            verdict(Reach.OPEN, "the placement model has no form of this rule; measured by the "
+                    "audit only")
+            continue
+        seconds = (deadline - time.monotonic()) / (len(misses) - k)
+        if seconds < 0.2:
+            verdict(Reach.OPEN, "no time left in the time limit to check")
+            continue
+        if _proof(plan, rules, group, miss, options.grid, seconds / 2, no_turning):
+            verdict(Reach.IMPOSSIBLE, "proven: no arrangement that passes the clearance rules "
+                    "has it")
+            continue
+        end = time.monotonic() + max(0.1, deadline - time.monotonic()) / (len(misses) - k)
+        reach, detail, better = _second(plan, rules, group, miss, current, others, options, end,
+                                        building)
+        verdict(reach, detail)
+        if better is not None:
+            current, taken = better, True
+    return (current.layout if taken else None), tuple(out)
+
+
+def _second(plan: Plan, rules: RuleSet, group: tuple[list[str], list[PieceSpec]],
+            miss: GroupCheck, current: Plan, others: list[Layout], options, end: float,
+            building: tuple[BuildingFinding, ...]) -> tuple[Reach, str, Plan | None]:
+    """The second search for ``miss`` (until ``end``): first with every group rule
+    ``current`` meets in the group kept and apart from the other candidates (its arrangement
+    may be taken: returned third), then, when that finds none, with the rule alone (to say
+    what meeting it costs). Returns the verdict and its detail."""
+    rule = (miss.rule, miss.pieces[0])
+    half = time.monotonic() + (end - time.monotonic()) / 2
+    where = _second_search(plan, rules, group, (*_kept(current, rules, group), rule), others,
+                           options, half, building)
+    trial = (plan.with_layout(tuple((pid, where.get(pid, at)) for pid, at in current.layout))
+             if where is not None else None)
+    if trial is not None and _met(trial, rules, miss) and _failures(trial, rules) < _failures(
+            current, rules) and _passes(trial, rules, building) and all(
+            visible_changes(spots(plan.with_layout(o), rules), spots(trial, rules)) for o in others):
+        return Reach.MET, "the candidate was rearranged to meet it", trial
+    where = _second_search(plan, rules, group, (rule,), [], options, end, building)
+    if where is None:
+        return (Reach.OPEN, "no arrangement that passes the audit and meets it was found in the "
+                "time; the placement model alone allows it", None)
+    trial = plan.with_layout(tuple((pid, where.get(pid, at)) for pid, at in current.layout))
+    if not _met(trial, rules, miss):
+        return Reach.OPEN, "the arrangement found still misses it on the audit's measure", None
+    cost = sorted({c.label for c in quality(trial, rules) if c.kind == Kind.GROUP and not c.ok})
+    return (Reach.POSSIBLE, "an arrangement that meets it was found, but it misses "
+            + ("; ".join(cost) if cost else "nothing more; it repeats another candidate"), None)
+
+
+def _passes(plan: Plan, rules: RuleSet, building: tuple[BuildingFinding, ...]) -> bool:
+    verdict = judge(plan, rules, widths=True)
+    return verdict.passed or excused(verdict, building)
+
+
+def _second_search(plan: Plan, rules: RuleSet, group: tuple[list[str], list[PieceSpec]],
+                   hard: tuple[tuple[str, str], ...], others: list[Layout], options, end: float,
+                   building: tuple[BuildingFinding, ...]) -> dict[str, Placement] | None:
+    """The first checker-passing layout of ``group`` with the rules ``hard`` (rule, subject)
+    in their sufficient form, apart from the layouts ``others`` as the search keeps its own
+    candidates apart, searched until ``end``; None when there is none in time."""
+    seconds = max(0.1, end - time.monotonic())
+    rooms, specs = group
+    sub = replace(options, candidates=1, time_limit=seconds)
+    search = _HardSearch(plan, rules, rooms, specs, sub, Clock(seconds), None, Counters(), building)
+    search.hard = hard
+    search.avoid = tuple(dict(o) for o in others)
+    search.run(1, end)
+    return search.found[0].placements if search.found else None

@@ -1,0 +1,120 @@
+"""Can the room have a missed group rule? The proof (relaxed model with the rule's necessary
+form) and the second search (sufficient form), judged by the layout-quality audit, which
+measures the geometry with shapely and does not trust the model."""
+
+from __future__ import annotations
+
+import math
+import time
+
+import pytest
+from ortools.sat.python import cp_model
+
+from roomfit.audit.check import audit
+from roomfit.audit.quality import quality
+from roomfit.plan.data import Door, Leaf, Piece, Placement, Plan, Room
+from roomfit.rules.catalog import resolve_pieces
+from roomfit.rules.sets import rules_for
+from roomfit.solve.hard_rules import Form, rule_literal
+from roomfit.solve.model import build_model
+from roomfit.solve.possible import Reach, settle
+from roomfit.solve.search import SolveOptions, components, solve
+
+
+def _room(width: int, depth: int, pieces: list[Piece]) -> Plan:
+    room = Room("r", "Room", "living", ((0, 0), (width, 0), (width, depth), (0, depth)))
+    door = Door("d", ("r", "outside"), (width - 500, 0), 900, Leaf.SLIDING)
+    return Plan("possible", (room,), doors=(door,), furniture=tuple(pieces))
+
+
+def _view_ok(plan: Plan) -> bool:
+    rules = rules_for(plan)
+    return all(c.ok for c in quality(plan, rules) if c.rule in ("group.view", "group.view_angle"))
+
+
+def _form_holds(plan: Plan, form: Form) -> bool:
+    """Whether the model, with every piece locked where ``plan`` puts it, allows ``form`` of
+    the sofa's viewing rule."""
+    rules = rules_for(plan)
+    specs = list(resolve_pieces(plan, rules))
+    built = build_model(plan, rules, specs, ["r"], strengthen=False, relaxed=True, objective=False)
+    got = rule_literal(built.model, built.pieces, built.rooms, "group.view", "sofa", form)
+    assert got is not None and got[1]
+    built.model.add(got[0] == 1)
+    solver = cp_model.CpSolver()
+    solver.parameters.num_workers = 1
+    return solver.solve(built.model) in (cp_model.OPTIMAL, cp_model.FEASIBLE)
+
+
+# The viewing range of a three-seat sofa and a 55 in (1397 mm) screen: 1.19 x the diagonal
+# (THX, a 40 degree field; common practice) to 2.5 x (rule of thumb, common practice), and
+# seats within 15 degrees of the screen's axis (SMPTE 196M-2003 section 9).
+LO, HI = math.ceil(1.19 * 1397), math.floor(2.5 * 1397)  # 1663, 3492 mm
+TAN15 = math.tan(math.radians(15))
+
+
+@pytest.mark.parametrize(("gap", "across"), [
+    (LO, 0), (LO - 1, 0), (HI, 0), (HI + 1, 0), (3000, 0),
+    (2000, math.floor(2000 * TAN15)), (2000, math.ceil(2000 * TAN15) + 1),
+    (round(HI * math.cos(math.radians(15))) - 5, 900), (1700, 440), (1700, 460),
+])
+def test_view_forms_bracket_the_audit(gap: int, across: int) -> None:
+    # sofa (2135 x 890) facing north, the TV unit (1600 x 400) facing south, fronts ``gap``
+    # apart, centre lines ``across`` apart: the necessary form holds wherever the audit
+    # passes, and where the sufficient form holds the audit passes
+    sofa_x = 600
+    tv_x = sofa_x + (2135 - 1600) // 2 + across
+    pieces = [Piece("sofa", "sofa-3", ("r",), placement=Placement(sofa_x, 500, 0, "r"), locked=True),
+              Piece("tv", "tv-unit", ("r",), placement=Placement(tv_x, 500 + 890 + gap, 180, "r"),
+                    locked=True)]
+    plan = _room(6000, 6000, pieces)
+    ok = _view_ok(plan)
+    if ok:
+        assert _form_holds(plan, Form.NECESSARY)
+    if _form_holds(plan, Form.SUFFICIENT):
+        assert ok
+
+
+def test_a_room_too_small_for_the_viewing_range_is_proven_impossible() -> None:
+    # 2600 x 2500 mm: fronts 1.19 x 1397 x cos 15 = 1606 mm apart (the least the audit can
+    # pass, THX 1.19 x diagonal, SMPTE 196M 15 degrees) plus the sofa's 890 mm and the TV
+    # unit's 400 mm make 2896 mm, more than either side of the room
+    assert 890 + math.floor(LO * math.cos(math.radians(15))) + 400 > 2600
+    plan = _room(2600, 2500, [Piece("sofa", "sofa-3", ("r",)), Piece("tv", "tv-unit", ("r",))])
+    rules = rules_for(plan)
+    result = solve(plan, rules, SolveOptions(candidates=1, time_limit=20.0, workers=1))
+    assert result.candidates, result.status
+    first = plan.with_layout(result.candidates[0].layout)
+    assert not _view_ok(first)
+    verdicts = [p for p in result.possible if "group.view" in p.rules]
+    assert verdicts and verdicts[0].reach == Reach.IMPOSSIBLE, [p.text for p in result.possible]
+    assert verdicts[0].text.startswith("not possible in this room: ")
+
+
+def test_a_turned_away_sofa_is_rearranged_when_the_room_allows_it() -> None:
+    # the sofa with its back to the TV, in a room with space for both to face each other
+    pieces = [Piece("sofa", "sofa-3", ("r",), placement=Placement(1000, 2700, 180, "r")),
+              Piece("tv", "tv-unit", ("r",), placement=Placement(1300, 4600, 180, "r"))]
+    plan = _room(4500, 5000, pieces)
+    rules = rules_for(plan)
+    assert audit(plan, rules).passed and not _view_ok(plan)
+    specs = resolve_pieces(plan, rules)
+    better, verdicts = settle(plan, rules, components(plan, specs), plan.layout, [],
+                              SolveOptions(seed=0), time.monotonic() + 30)
+    assert verdicts and verdicts[0].reach == Reach.MET, [v.text for v in verdicts]
+    assert better is not None
+    done = plan.with_layout(better)
+    assert _view_ok(done) and audit(done, rules).passed
+
+
+def test_a_desk_too_high_is_impossible_without_a_search() -> None:
+    # 2010 ADA Standards 902.3: work surfaces 28 to 34 in high; a 36 in desk cannot be
+    # arranged into knee space
+    desk = Piece("desk", "desk", ("r",), height=914, placement=Placement(500, 2000, 0, "r"))
+    plan = _room(4000, 4000, [desk])
+    rules = rules_for(plan)
+    specs = resolve_pieces(plan, rules)
+    better, verdicts = settle(plan, rules, components(plan, specs), plan.layout, [],
+                              SolveOptions(), time.monotonic() + 5)
+    assert better is None
+    assert [v.reach for v in verdicts if "group.desk_height" in v.rules] == [Reach.IMPOSSIBLE]
