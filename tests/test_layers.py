@@ -23,7 +23,8 @@ STAGE = {
     # the reader validates piece types and rule-set names against the rules stage
     "plan.fields": 3, "plan.openings": 3, "plan.read": 3, "plan.write": 3,
     "audit": 3, "audit.geometry": 3, "audit.marks": 3, "audit.group_measures": 3,
-    "audit.group_rules": 3, "audit.quality": 3, "audit.ideas": 3,
+    "audit.transfer": 3, "audit.group_rules": 3, "audit.quality": 3,
+    "audit.ideas": 3,
     # the IFC import: neutral floor data, then the reader (sole user of ifcopenshell) and
     # the pure-shapely steps that make a Plan of it
     "plan.floordata": 1, "plan.ifc_read": 3, "plan.floor_base": 3, "plan.floor_doors": 3,

@@ -50,7 +50,11 @@ def test_every_set_is_complete_and_sound(name: str) -> None:
     from roomfit.audit.alcove import ALCOVE_RULES
     alcove = set(ids) & set(ALCOVE_RULES)
     assert not alcove or alcove == set(ALCOVE_RULES)
-    assert set(ids) - alcove == set(REQUIRED_RULES) | {f"zone.{k}" for k in kinds}
+    # so is the WC transfer clearance (2010 ADA §604.3.1): both figures or none
+    from roomfit.audit.transfer import WC_RULES
+    wc = set(ids) & set(WC_RULES)
+    assert not wc or wc == set(WC_RULES)
+    assert set(ids) - alcove - wc == set(REQUIRED_RULES) | {f"zone.{k}" for k in kinds}
     assert ruleset_problems(rs, kinds) == []
     for r in rs.rules:
         assert r.description.strip() and r.source.strip(), r.id
@@ -97,6 +101,8 @@ def test_every_cited_row_is_on_the_references_page() -> None:
     ("zone.bed_side_other", 30, 760, "B1"),   # §806.2.3: on both sides of the bed
     ("zone.seat_front", 30, 760, "F1"),       # 2010 ADA §305.3: CFS 30 in wide
     ("zone.storage_front", 48, 1220, "F1"),   # §305.3: 48 in long (forward approach)
+    ("zone.wc_transfer", 60, 1525, "E19"),    # 2010 ADA §604.3.1: 60 in from the side wall
+    ("zone.wc_transfer_depth", 56, 1420, "E19"),  # §604.3.1: 56 in from the rear wall
 ])
 def test_ada_2010_values(rule: str, inches: int, printed_mm: int, row: str) -> None:
     r = load_ruleset("ada-2010").get(rule)

@@ -17,7 +17,7 @@ from dataclasses import dataclass
 from enum import StrEnum
 from importlib import resources
 
-from shapely import LineString, Polygon, box
+from shapely import LineString, Point, Polygon, box
 from shapely.geometry.base import BaseGeometry
 
 from roomfit.audit.geometry import (
@@ -207,6 +207,7 @@ class Ctx:
     plan: Plan
     placed: dict[str, Placed]
     rooms: dict[str, Polygon]
+    rules: RuleSet
 
     def in_room(self, room: str, pred: Callable[[PieceSpec], bool]) -> list[tuple[str, Placed]]:
         return [(pid, p) for pid, p in self.placed.items() if p.at.room == room and pred(p.spec)]
@@ -221,7 +222,7 @@ class Ctx:
 def context(plan: Plan, rules: RuleSet) -> Ctx:
     specs = {s.id: s for s in resolve_pieces(plan, rules)}
     placed = {pid: Placed(specs[pid], pl, footprint(specs[pid], pl)) for pid, pl in plan.layout}
-    return Ctx(plan, placed, {r.id: room_polygon(r) for r in plan.rooms})
+    return Ctx(plan, placed, {r.id: room_polygon(r) for r in plan.rooms}, rules)
 
 
 def front_mid(p: Placed) -> tuple[float, float]:
@@ -268,11 +269,19 @@ def side_segment(p: Placed, side: str) -> LineString:
     return LineString([(x0, y), (x1, y)])
 
 
-def free_depth(ctx: Ctx, pid: str, side: str) -> float:
-    """Free floor (mm) straight out from ``side`` of a piece, over that side's whole length,
-    to the nearest wall, fitting or other standing piece (at most :data:`_LOOK`)."""
+def free_depth(ctx: Ctx, pid: str, side: str, inset: float = 0) -> float:
+    """Free floor (mm) straight out from ``side`` of a piece, over that side's whole length
+    less ``inset`` at the back end (a bed's head end, as its side zones leave out), to the
+    nearest wall, fitting or other standing piece (at most :data:`_LOOK`)."""
     p = ctx.placed[pid]
     seg = side_segment(p, side)
+    if inset:
+        head = back_edge(p.shape.bounds, p.at.rotation)
+        a, b = (Point(c) for c in seg.coords)
+        near, far = (a, b) if head.distance(a) <= head.distance(b) else (b, a)
+        t = min(1.0, inset / seg.length)
+        seg = LineString([(near.x + (far.x - near.x) * t, near.y + (far.y - near.y) * t),
+                          (far.x, far.y)])
     dx, dy = side_direction(side, p.at.rotation)
     (ax, ay), (bx, by) = seg.coords
     band = box(min(ax, bx, ax + dx * _LOOK), min(ay, by, ay + dy * _LOOK),

@@ -11,7 +11,7 @@ from collections.abc import Callable
 
 from shapely import LineString, Point
 
-from roomfit.audit.geometry import side_direction, window_segment
+from roomfit.audit.geometry import lies_flat, side_direction, window_segment
 from roomfit.audit.group_measures import (
     Ctx,
     GroupCheck,
@@ -33,6 +33,7 @@ from roomfit.audit.group_measures import (
     wall_categories,
     wall_share,
 )
+from roomfit.audit.transfer import clear_width, wc_transfer
 from roomfit.rules.catalog import PieceSpec
 from roomfit.rules.groups import param
 
@@ -243,6 +244,40 @@ def _rug(ctx: Ctx) -> list[GroupCheck]:
     return out
 
 
+def _transfer(ctx: Ctx) -> list[GroupCheck]:
+    """The transfer space beside a WC (:mod:`roomfit.audit.transfer`: clear width from the
+    side wall across the WC) and beside a bed, on the side the plan says the client transfers
+    from (``transfer``): for a bed, the free depth over that long side less the head end its
+    zone leaves out, against the rule set's depth for that zone. Each against the set's
+    published figure, with its source."""
+    out: list[GroupCheck] = []
+    for f in ctx.plan.fixtures:
+        t = wc_transfer(ctx.plan, ctx.rules, f)
+        if t is None:
+            continue
+        standing = [p.shape for p in ctx.placed.values() if p.at.room == f.room
+                    and not lies_flat(p.spec)]
+        width = clear_width(ctx.plan, t, standing)
+        c = t.area.centroid
+        out.append(group_check("access.transfer", f"transfer space beside {f.label.lower()} "
+                               f"({f.transfer} side), from the side wall", width >= t.width,
+                               width, "mm", f"at least {metres(t.width)}", t.source, (f.id,),
+                               f.room, (c.x, c.y)))
+    for pid, p in ctx.placed.items():
+        side = ctx.plan.piece(pid).transfer
+        zone = next((z for z in p.spec.zones if z.side == side), None)
+        if zone is None:
+            continue
+        depth = free_depth(ctx, pid, zone.side, zone.inset)
+        rule = ctx.rules.get(zone.rule) if ctx.rules.has(zone.rule) else None
+        out.append(group_check("access.transfer", f"transfer space beside {ctx.name(pid)} "
+                               f"({side} side)", depth >= zone.depth, depth, "mm",
+                               f"at least {metres(zone.depth)}",
+                               rule.source if rule is not None else zone.rule, (pid,),
+                               p.at.room, centre(p)))
+    return out
+
+
 def _wall_pref(ctx: Ctx) -> list[GroupCheck]:
     out: list[GroupCheck] = []
     share = param("wall.share")
@@ -260,5 +295,5 @@ def _wall_pref(ctx: Ctx) -> list[GroupCheck]:
 
 
 RULES: tuple[Callable[[Ctx], list[GroupCheck]], ...] = (
-    _view, _reach, _bedside, _bed, _dining, _desk, _talk, _rug, _wall_pref)
+    _view, _reach, _bedside, _bed, _dining, _desk, _talk, _rug, _transfer, _wall_pref)
 

@@ -56,7 +56,7 @@ __all__ = [
 QUALITY_RULES = (
     "group.view", "group.view_angle", "group.reach", "group.reach_axis", "group.bedside",
     "group.bed_wall", "group.bed_window", "group.dining", "group.desk_chair",
-    "group.desk_height", "group.talk", "group.talk_turn", "group.rug", "pref.wall",
+    "group.desk_height", "group.talk", "group.talk_turn", "group.rug", "access.transfer", "pref.wall",
 )
 
 

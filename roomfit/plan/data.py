@@ -117,6 +117,8 @@ class Fixture:
 
     ``outline`` is its footprint, ``height`` its height (mm). ``zone``, when given, is the
     floor in front of it a person needs to use it (a polygon, kept free of furniture).
+    ``transfer`` (a WC): the side, ``"left"`` or ``"right"`` as seen sitting on it, the client
+    transfers from a wheelchair; the set's WC clearance extends to that side.
     """
 
     id: str
@@ -126,6 +128,7 @@ class Fixture:
     outline: tuple[Point, ...]
     height: int
     zone: tuple[Point, ...] | None = None
+    transfer: str | None = None
 
 
 @dataclass(frozen=True)
@@ -155,6 +158,8 @@ class Piece:
     (None: the catalogue's default). A ``custom`` piece may say what a catalogue type says:
     ``category`` (a catalogue category, so rules for beds or seats apply), ``zones`` (side,
     zone kind) pairs whose depths the rule set gives, and the functional ``groups`` it joins.
+    ``transfer`` (beds): the long side, ``"left"`` or ``"right"``, the client transfers from
+    a wheelchair; that side takes the set's transfer space (the main bed-side zone).
     """
 
     id: str
@@ -170,6 +175,7 @@ class Piece:
     category: str = ""
     zones: tuple[tuple[str, str], ...] = ()
     groups: tuple[str, ...] = ()
+    transfer: str | None = None
 
 
 @dataclass(frozen=True)

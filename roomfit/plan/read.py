@@ -50,9 +50,9 @@ __all__ = ["read_plan", "loads_plan", "plan_places"]
 _TOP_KEYS = {VERSION_KEY, "name", "client", "address", "notes", "units", "rules", "rooms",
              "doors", "windows", "fixtures", "furniture", "routines"}
 _ROOM_KEYS = {"id", "label", "use", "outline"}
-_FIXTURE_KEYS = {"id", "room", "kind", "label", "outline", "height", "zone"}
+_FIXTURE_KEYS = {"id", "room", "kind", "label", "outline", "height", "zone", "transfer"}
 _PIECE_KEYS = {"id", "type", "room", "rooms", "label", "width", "depth", "height", "placement",
-               "locked", "access", "category", "zones", "groups"}
+               "locked", "access", "category", "zones", "groups", "transfer"}
 _PLACEMENT_KEYS = {"x", "y", "rotation", "room"}
 _RULE_KEYS = {"set", "overrides"}
 _TRIP_KEYS = {"from", "to", "per_day", "label", "night"}
@@ -113,6 +113,11 @@ def _read_fixtures(r: FieldReader, data: dict, rooms: dict[str, Room]) -> list[F
         outline = r.outline(t, "outline", f)
         zone = r.outline(t, "zone", f)
         height = r.length(t, "height", f)
+        transfer = r.text(t, "transfer", f)
+        if transfer is not None and (transfer not in ("left", "right") or kind != "wc"):
+            r.add(f"{f}.transfer", f"transfer {transfer!r} on a {kind!r} fitting",
+                  "a WC fitting (kind = \"wc\") takes transfer = \"left\" or \"right\"")
+            continue
         if room is not None and room not in rooms:
             r.add(f"{f}.room", f"unknown room {room!r}", known_ids(rooms))
             continue
@@ -129,7 +134,8 @@ def _read_fixtures(r: FieldReader, data: dict, rooms: dict[str, Room]) -> list[F
                 r.add(f"{f}.zone", f"{beyond / 1e6:.3f} m2 of the fitting's zone lies outside room "
                       f"{room!r}", "the zone is floor in front of the fitting, inside its room")
                 continue
-        out.append(Fixture(fid, room, kind, label, outline, height, zone))  # type: ignore[arg-type]
+        out.append(Fixture(fid, room, kind, label, outline, height, zone,  # type: ignore[arg-type]
+                           transfer))
     return out
 
 
@@ -220,6 +226,7 @@ def _read_furniture(r: FieldReader, data: dict, rooms: dict[str, Room]) -> list[
                 ptype == "custom" or load_catalog()[ptype].category != "bed"):
             r.add(f"{f}.access", f"access applies to beds only, not to a {ptype!r} piece",
                   "leave access out")
+        transfer = _read_transfer(r, t, f, ptype, access)
         locked = t.get("locked", False)
         if not isinstance(locked, bool):
             r.add(f"{f}.locked", f"expected true or false, found {kind_of(locked)}")
@@ -235,8 +242,29 @@ def _read_furniture(r: FieldReader, data: dict, rooms: dict[str, Room]) -> list[
         if any(rid not in rooms for rid in allowed):
             continue
         out.append(Piece(pid, ptype, tuple(allowed), label, sizes["width"], sizes["depth"],
-                         sizes["height"], placement, bool(locked), access, *use))
+                         sizes["height"], placement, bool(locked), access, *use, transfer))
     return out
+
+
+def _read_transfer(r: FieldReader, t: dict, f: str, ptype: str | None, access: str | None) -> str | None:
+    """A bed's ``transfer`` side (``left`` or ``right``), which must be a side ``access``
+    keeps free; None when absent or wrong (the problem is recorded on ``r``)."""
+    side = r.text(t, "transfer", f)
+    if side is None:
+        return None
+    bed = ptype is not None and (t.get("category") == "bed" if ptype == "custom"
+                                 else ptype in load_catalog() and load_catalog()[ptype].category == "bed")
+    if side not in ("left", "right"):
+        r.add(f"{f}.transfer", f"unknown transfer side {side!r}", "use left or right")
+    elif not bed:
+        r.add(f"{f}.transfer", f"transfer applies to beds only, not to a {ptype!r} piece",
+              "leave transfer out")
+    elif access in ("left", "right") and access != side:
+        r.add(f"{f}.transfer", f"the client transfers from the {side} side but access keeps "
+              f"only the {access} side free", f"set access = \"{side}\" or \"both\"")
+    else:
+        return side
+    return None
 
 
 def _read_placement(r: FieldReader, raw: Any, f: str, allowed: list[str],

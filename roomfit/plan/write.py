@@ -59,6 +59,8 @@ def _plan_to_dict(plan: Plan) -> dict[str, Any]:
                                   "height": write_length(fx.height, u)}
             if fx.zone:
                 fd["zone"] = [pt(p) for p in fx.zone]
+            if fx.transfer is not None:
+                fd["transfer"] = fx.transfer
             d["fixtures"].append(fd)
     if plan.furniture:
         d["furniture"] = [_piece_to_dict(p, u) for p in plan.furniture]
@@ -87,6 +89,8 @@ def _piece_to_dict(p: Piece, u: str) -> dict[str, Any]:
             d[k] = write_length(getattr(p, k), u)
     if p.access is not None:
         d["access"] = p.access
+    if p.transfer is not None:
+        d["transfer"] = p.transfer
     if p.category:
         d["category"] = p.category
     if p.zones:

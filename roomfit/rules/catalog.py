@@ -250,6 +250,20 @@ def _long_side_zones(zones: list[tuple[str, str]], access: str | None) -> list[t
     return [(access, main), *keep]
 
 
+def _transfer_zones(zones: list[tuple[str, str]], transfer: str | None,
+                    main: str | None) -> list[tuple[str, str]]:
+    """Put the bed's ``main`` long-side zone kind (the set's transfer space) on the
+    ``transfer`` side; the other long side takes the kind that side had, if any."""
+    if transfer is None or main is None:
+        return zones
+    sides = {s: k for s, k in zones if s in ("left", "right")}
+    if sides.get(transfer) == main:
+        return zones
+    other = "right" if transfer == "left" else "left"
+    swapped = [(transfer, main)] + ([(other, sides[transfer])] if transfer in sides else [])
+    return swapped + [(s, k) for s, k in zones if s not in ("left", "right")]
+
+
 def resolve_piece(
     piece: Piece, rules: RuleSet, catalog: dict[str, FurnitureType], field: str = ""
 ) -> PieceSpec:
@@ -257,12 +271,14 @@ def resolve_piece(
 
     A ``custom`` piece has the use zones, category and groups its plan entry declares (none
     by default); its sizes must all be given (the plan reader checks that). ``access``
-    (beds) picks which long sides keep a zone, see ``_long_side_zones``.
+    (beds) picks which long sides keep a zone, see ``_long_side_zones``; ``transfer`` which
+    long side takes the main one (the set's transfer space), see ``_transfer_zones``.
     """
     if piece.type == "custom":
         assert piece.width and piece.depth and piece.height is not None
+        main = dict(piece.zones).get("left") or dict(piece.zones).get("right")
         own = tuple(ZoneReq(side, kind, rules.mm(f"zone.{kind}"), f"zone.{kind}")
-                    for side, kind in piece.zones)
+                    for side, kind in _transfer_zones(list(piece.zones), piece.transfer, main))
         return PieceSpec(piece.id, piece.label or piece.id, "custom", piece.category or "custom",
                          piece.width, piece.depth, piece.height, False, own, (), piece.rooms,
                          groups=piece.groups)
@@ -270,7 +286,8 @@ def resolve_piece(
         raise PlanError(Problem(field + ".type", f"unknown furniture type {piece.type!r}",
                                 "run `roomfit catalog` to list the types, or use type = \"custom\""))
     t = catalog[piece.type]
-    zones = _long_side_zones(list(t.zones), piece.access)
+    main = dict(t.zones).get("left") or dict(t.zones).get("right")
+    zones = _transfer_zones(_long_side_zones(list(t.zones), piece.access), piece.transfer, main)
     reqs = tuple(
         ZoneReq(side, kind, rules.mm(f"zone.{kind}"), f"zone.{kind}",
                 t.head_clear if side in ("left", "right") else 0)

@@ -25,6 +25,7 @@ from roomfit.audit.geometry import (
     room_polygon,
     window_band,
 )
+from roomfit.audit.transfer import wc_transfer
 from roomfit.plan.data import Plan, Room
 from roomfit.rules.sets import RuleSet
 
@@ -188,6 +189,9 @@ def room_geometry(plan: Plan, rules: RuleSet, room: Room, grid: int) -> RoomGeo:
         solid.append(shape)
         fittings += cover_rects(shape, grid)
         z = fixture_zone(f)
+        wc = wc_transfer(plan, rules, f)  # the set's WC clearance on the transfer side
+        if wc is not None:
+            z = wc.area if z is None else z.union(wc.area)
         if z is not None:
             clear.append((f"fixture.{f.id}", tuple(cover_rects(z.intersection(poly), grid))))
             inner.append((f"fixture.{f.id}", tuple(cover_rects(z.intersection(poly), grid, True))))
