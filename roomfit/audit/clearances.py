@@ -18,7 +18,7 @@ from shapely.ops import unary_union
 from roomfit.audit import geometry as geo
 from roomfit.audit.findings import Finding, cm2, outline, point, source_of
 from roomfit.audit.group_measures import back_edge, wall_share
-from roomfit.audit.transfer import wc_transfer
+from roomfit.audit.transfer import fitting_zone
 from roomfit.audit.walkway import TOUCH_MM2, Floor, standing
 from roomfit.rules.groups import param
 
@@ -143,11 +143,7 @@ def check_zones(ctx: Floor) -> list[Finding]:
                                room=pc.placement.room,
                                where=point(blocked if ids else zp), outline=outline(zp)))
     for f in ctx.plan.fixtures:
-        fz = geo.fixture_zone(f)
-        wc = wc_transfer(ctx.plan, ctx.rules, f)  # the set's WC clearance on the transfer side
-        if wc is not None:
-            extra = wc.area.difference(geo.fixture_polygon(f))
-            fz = extra if fz is None else fz.union(extra)
+        fz = fitting_zone(ctx.plan, ctx.rules, f)  # with a WC's transfer clearance
         if fz is None:
             continue
         ids, blocked = _blockers(fz, pieces)

@@ -21,17 +21,18 @@ catalogue's business (``transfer`` on a bed puts the set's main bed-side zone th
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from dataclasses import dataclass
 
 from shapely import Polygon, box
 from shapely.geometry.base import BaseGeometry
 
-from roomfit.audit.geometry import fixture_polygon, room_polygon, side_direction
+from roomfit.audit.geometry import fixture_polygon, fixture_zone, room_polygon, side_direction
 from roomfit.audit.group_measures import back_edge, wall_share
 from roomfit.plan.data import Fixture, Plan
 from roomfit.rules.sets import RuleSet
 
-__all__ = ["WC_RULES", "WcTransfer", "wc_facing", "wc_transfer", "clear_width"]
+__all__ = ["WC_RULES", "WcTransfer", "wc_facing", "wc_transfer", "clear_width", "fitting_zone"]
 
 #: The rule ids of a set's WC clearance (optional: a set publishes both or neither).
 WC_RULES = ("zone.wc_transfer", "zone.wc_transfer_depth")
@@ -123,7 +124,7 @@ def wc_transfer(plan: Plan, rules: RuleSet, wc: Fixture) -> WcTransfer | None:
                       rules.get("zone.wc_transfer").source)
 
 
-def clear_width(plan: Plan, t: WcTransfer, pieces: list[BaseGeometry]) -> float:
+def clear_width(plan: Plan, t: WcTransfer, pieces: Sequence[BaseGeometry]) -> float:
     """Clear width (mm) of ``t`` from the side wall towards the transfer side, over the
     clearance's depth: to the nearest wall, other fitting or standing piece (``pieces``), at
     most :data:`_LOOK`."""
@@ -131,3 +132,14 @@ def clear_width(plan: Plan, t: WcTransfer, pieces: list[BaseGeometry]) -> float:
     strip = _strip(t.axis, t.origin, t.origin + t.sign * _LOOK, t.band)
     hit = _first_hit([*_blockers(plan, wc, strip), *pieces], strip, t.axis, t.sign, t.origin)
     return float(_LOOK) if hit is None else hit
+
+
+def fitting_zone(plan: Plan, rules: RuleSet, fitting: Fixture) -> BaseGeometry | None:
+    """The floor kept free of furniture at a fitting: its plan ``zone``, joined by its
+    transfer clearance (less the fitting itself) when it has one; None when neither."""
+    zone = fixture_zone(fitting)
+    t = wc_transfer(plan, rules, fitting)
+    if t is None:
+        return zone
+    extra = t.area.difference(fixture_polygon(fitting))
+    return extra if zone is None else zone.union(extra)

@@ -21,11 +21,10 @@ from shapely.geometry.base import BaseGeometry
 from roomfit.audit.geometry import (
     door_shapes,
     fixture_polygon,
-    fixture_zone,
     room_polygon,
     window_band,
 )
-from roomfit.audit.transfer import wc_transfer
+from roomfit.audit.transfer import fitting_zone
 from roomfit.plan.data import Plan, Room
 from roomfit.rules.sets import RuleSet
 
@@ -188,10 +187,7 @@ def room_geometry(plan: Plan, rules: RuleSet, room: Room, grid: int) -> RoomGeo:
         shape = fixture_polygon(f).intersection(poly)
         solid.append(shape)
         fittings += cover_rects(shape, grid)
-        z = fixture_zone(f)
-        wc = wc_transfer(plan, rules, f)  # the set's WC clearance on the transfer side
-        if wc is not None:
-            z = wc.area if z is None else z.union(wc.area)
+        z = fitting_zone(plan, rules, f)  # with a WC's transfer clearance
         if z is not None:
             clear.append((f"fixture.{f.id}", tuple(cover_rects(z.intersection(poly), grid))))
             inner.append((f"fixture.{f.id}", tuple(cover_rects(z.intersection(poly), grid, True))))
