@@ -53,7 +53,7 @@ from roomfit.solve.groups import dot, doubled_mid
 from roomfit.solve.rooms import RoomGeo
 from roomfit.solve.vars import PieceVars
 
-__all__ = ["Form", "FAMILIES", "family", "rule_literal"]
+__all__ = ["Form", "FAMILIES", "family", "rule_literal", "view_literal"]
 
 _SCALE = 10_000  # tangents as whole ten-thousandths
 
@@ -150,6 +150,12 @@ def _view(m: cp_model.CpModel, seat: PieceVars, screen: PieceVars, form: Form) -
         m.add(-_SCALE * across2 <= 2 * tan * gap).only_enforce_if(p)
         options.append(p)
     return _any(m, options)
+
+
+def view_literal(m: cp_model.CpModel, seat: PieceVars, screen: PieceVars) -> cp_model.IntVar:
+    """A literal that implies: ``seat`` and ``screen`` meet the audit's ``group.view`` and
+    ``group.view_angle`` (the sufficient form): the solver's ``facing`` relation."""
+    return _view(m, seat, screen, Form.SUFFICIENT)
 
 
 def _reach(m: cp_model.CpModel, table: PieceVars, seat: PieceVars) -> cp_model.IntVar:

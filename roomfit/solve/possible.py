@@ -50,7 +50,7 @@ __all__ = ["SHARE", "Reach", "Possibility", "settle", "has_groups"]
 
 #: Share of the solve's time limit kept for settling the first candidate's missed group rules
 #: (proofs and second searches; unused when it misses none).
-SHARE = 0.15
+SHARE = 0.2
 
 
 class Reach(StrEnum):

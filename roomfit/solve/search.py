@@ -300,7 +300,7 @@ def solve(plan: Plan, rules: RuleSet, options: SolveOptions | None = None,
     if settling:
         better, possible = settle(plan, rules, groups, candidates[0].layout,
                                   [c.layout for c in candidates[1:]], options,
-                                  min(clock.deadline - audit_reserve,
+                                  min(clock.deadline - audit_reserve / options.candidates,
                                       time.monotonic() + settling), building)
         if better is not None:
             candidates[0] = _rescored(plan, rules, candidates[0], better)

@@ -20,7 +20,9 @@ from roomfit.audit.geometry import footprint_box, side_direction
 from roomfit.audit.places import end_point
 from roomfit.plan.data import Plan, Trip
 from roomfit.rules.catalog import PieceSpec
+from roomfit.rules.groups import param
 from roomfit.solve.groups import conversation_terms, relation_group_terms, unmet_terms
+from roomfit.solve.hard_rules import view_literal
 from roomfit.solve.rooms import RoomGeo
 from roomfit.solve.vars import PieceVars
 
@@ -111,27 +113,6 @@ def facing_range(seat: PieceSpec, tv: PieceSpec) -> tuple[int, int]:
     return math.ceil(seat.view_min * tv.screen), math.floor(seat.view_max * tv.screen)
 
 
-def _facing(m: cp_model.CpModel, seat: PieceVars, tv: PieceVars, tol: int) -> cp_model.IntVar | None:
-    """A literal that implies: the seat's front faces the TV's front (opposite turns, one room),
-    their centre lines within ``tol`` mm, the fronts the viewing range apart."""
-    lo, hi = facing_range(seat.spec, tv.spec)
-    if hi <= 0:
-        return None
-    options = []
-    for (r, rot), lit in seat.alts.items():
-        tlit = tv.alts.get((r, (rot + 180) % 360))
-        if tlit is None:
-            continue
-        p = m.new_bool_var("")
-        m.add_implication(p, lit)
-        m.add_implication(p, tlit)
-        axis, sign = _axis_sign(side_direction("front", rot))
-        _gap_in(m, seat, tv, axis, sign, lo, hi, p)
-        _on_axis(m, seat, tv, 1 - axis, tol, p)
-        options.append(p)
-    return _either(m, options)
-
-
 def _in_front(m: cp_model.CpModel, table: PieceVars, seat: PieceVars, tol: int) -> cp_model.IntVar:
     """A literal that implies: ``table`` stands in front of ``seat`` on its centre line, its
     gap from the seat's front within the catalogue's gap_min..gap_max, moved out to the seat's
@@ -181,28 +162,26 @@ def _beside_head(m: cp_model.CpModel, stand: PieceVars, bed: PieceVars) -> cp_mo
 
 
 def _relation_terms(m: cp_model.CpModel, pv: PieceVars, t: PieceVars, relation: str,
-                    w: dict, rel: dict) -> list:
+                    w: dict) -> list:
     """Penalty terms of one relation: a fixed penalty when it is not met, plus per cm from the
     related piece's spot (a gradient towards it)."""
-    tol = int(rel["axis_tolerance"])
     if relation == "beside_head":
         met = _beside_head(m, pv, t)
         tx, ty = _point2(t, "back", 0)
         sx, sy = _centre2(pv)
         weight = int(w["beside_head"])
     elif relation == "in_front":
-        met = _in_front(m, pv, t, tol)
+        met = _in_front(m, pv, t, param("reach.off_axis").mm)
         gap = max(pv.spec.gap_min, max((z.depth for z in t.spec.zones if z.side == "front"), default=0))
         gap += min(pv.spec.width, pv.spec.depth) // 2
         tx, ty = _point2(t, "front", gap)
         sx, sy = _centre2(pv)
         weight = int(w["in_front"])
     elif relation == "facing":
-        got = _facing(m, pv, t, tol)
-        if got is None:
-            return []
-        met = got
         lo, hi = facing_range(pv.spec, t.spec)
+        if hi <= 0:
+            return []
+        met = view_literal(m, pv, t)
         tx, ty = _point2(pv, "front", (lo + hi) // 2 + t.spec.depth // 2)
         sx, sy = _centre2(t)
         weight = int(w["facing"])
@@ -220,7 +199,6 @@ def add_objective(m: cp_model.CpModel, pieces: list[PieceVars], geo: dict[str, R
     are the daily trips between places of ``plan`` (no routine term without a plan); ``extra``
     are more linear terms to add (functional groups)."""
     w = prefs["weights"]
-    rel = prefs["relations"]
     terms = []
     by_cat: dict[str, list[PieceVars]] = {}
     for pv in pieces:
@@ -230,7 +208,7 @@ def add_objective(m: cp_model.CpModel, pieces: list[PieceVars], geo: dict[str, R
             cands = [t for t in by_cat.get(target, []) if set(t.spec.rooms) & set(pv.spec.rooms)]
             if not cands or (pv.locked and cands[0].locked):
                 continue
-            terms += _relation_terms(m, pv, cands[0], relation, w, rel)
+            terms += _relation_terms(m, pv, cands[0], relation, w)
         if pv.locked:
             continue
         # wall-loving pieces not against a wall
