@@ -51,9 +51,10 @@ from roomfit.audit.group_measures import reach_range, used_long_sides, view_rang
 from roomfit.rules.groups import param
 from roomfit.solve.groups import dot, doubled_mid
 from roomfit.solve.rooms import RoomGeo
+from roomfit.solve.symmetry import interchangeable
 from roomfit.solve.vars import PieceVars
 
-__all__ = ["Form", "FAMILIES", "family", "rule_literal", "view_literal"]
+__all__ = ["Form", "FAMILIES", "family", "rule_literal", "view_literal", "any_of", "axis_sign"]
 
 _SCALE = 10_000  # tangents as whole ten-thousandths
 
@@ -85,12 +86,12 @@ def _lo(pv: PieceVars, axis: int) -> cp_model.IntVar:
     return pv.x if axis == 0 else pv.y
 
 
-def _axis(direction: tuple[int, int]) -> tuple[int, int]:
+def axis_sign(direction: tuple[int, int]) -> tuple[int, int]:
     """(axis, sign) of a unit direction: axis 0 is x, 1 is y."""
     return (0, direction[0]) if direction[0] else (1, direction[1])
 
 
-def _any(m: cp_model.CpModel, options: list[cp_model.IntVar]) -> cp_model.IntVar:
+def any_of(m: cp_model.CpModel, options: list[cp_model.IntVar]) -> cp_model.IntVar:
     """A literal that implies one of ``options`` (false when there are none)."""
     ok = m.new_bool_var("")
     if options:
@@ -123,7 +124,7 @@ def _turns_fully(pv: PieceVars) -> bool:
 def _view(m: cp_model.CpModel, seat: PieceVars, screen: PieceVars, form: Form) -> cp_model.IntVar:
     lo, hi = view_range(seat.spec, screen.spec)
     if hi <= 0:
-        return _any(m, [])
+        return any_of(m, [])
     theta = math.radians(param("view.off_axis").value)
     if form == Form.NECESSARY:
         a_min, a_max = math.floor(lo * math.cos(theta)), hi
@@ -138,7 +139,7 @@ def _view(m: cp_model.CpModel, seat: PieceVars, screen: PieceVars, form: Form) -
         if tlit is None:
             continue
         p = _option(m, lit, tlit)
-        axis, sign = _axis(side_direction("front", rot))
+        axis, sign = axis_sign(side_direction("front", rot))
         seat_hi = _lo(seat, axis) + seat.size(rot)[axis]
         screen_hi = _lo(screen, axis) + screen.size(srot)[axis]
         gap = (_lo(screen, axis) - seat_hi) if sign > 0 else (_lo(seat, axis) - screen_hi)
@@ -149,7 +150,7 @@ def _view(m: cp_model.CpModel, seat: PieceVars, screen: PieceVars, form: Form) -
         m.add(_SCALE * across2 <= 2 * tan * gap).only_enforce_if(p)
         m.add(-_SCALE * across2 <= 2 * tan * gap).only_enforce_if(p)
         options.append(p)
-    return _any(m, options)
+    return any_of(m, options)
 
 
 def view_literal(m: cp_model.CpModel, seat: PieceVars, screen: PieceVars) -> cp_model.IntVar:
@@ -168,7 +169,7 @@ def _reach(m: cp_model.CpModel, table: PieceVars, seat: PieceVars) -> cp_model.I
         if not tlits:
             continue
         p = _option(m, lit, tlits)
-        axis, sign = _axis(side_direction("front", rot))
+        axis, sign = axis_sign(side_direction("front", rot))
         seat_hi = _lo(seat, axis) + seat.size(rot)[axis]
         gap = (_lo(table, axis) - seat_hi) if sign > 0 else (_lo(seat, axis) - ends[axis])
         b = 1 - axis
@@ -177,7 +178,7 @@ def _reach(m: cp_model.CpModel, table: PieceVars, seat: PieceVars) -> cp_model.I
         for c in (gap >= lo, gap <= hi, across2 <= 2 * tol, -across2 <= 2 * tol):
             m.add(c).only_enforce_if(p)
         options.append(p)
-    return _any(m, options)
+    return any_of(m, options)
 
 
 def _bedside(m: cp_model.CpModel, stand: PieceVars, bed: PieceVars, form: Form) -> cp_model.IntVar:
@@ -188,11 +189,11 @@ def _bedside(m: cp_model.CpModel, stand: PieceVars, bed: PieceVars, form: Form) 
         slits = _in(stand, r)
         if not slits:
             continue
-        ha, hsign = _axis(side_direction("back", rot))
+        ha, hsign = axis_sign(side_direction("back", rot))
         length = bed.size(rot)[ha]
         for side in used_long_sides(bed.spec):
             p = _option(m, lit, slits)
-            sa, ssign = _axis(side_direction(side, rot))
+            sa, ssign = axis_sign(side_direction(side, rot))
             bed_hi = {a: _lo(bed, a) + bed.size(rot)[a] for a in (0, 1)}
             line = bed_hi[sa] if ssign > 0 else _lo(bed, sa)
             if form == Form.SUFFICIENT:
@@ -208,7 +209,7 @@ def _bedside(m: cp_model.CpModel, stand: PieceVars, bed: PieceVars, form: Form) 
             for c in cons:
                 m.add(c).only_enforce_if(p)
             options.append(p)
-    return _any(m, options)
+    return any_of(m, options)
 
 
 def _bed_window(m: cp_model.CpModel, bed: PieceVars, geo: dict[str, RoomGeo]) -> cp_model.IntVar:
@@ -251,21 +252,31 @@ def _talk(m: cp_model.CpModel, seat: PieceVars, other: PieceVars, far: int,
         for c in cons:
             m.add(c).only_enforce_if(p)
         options.append(p)
-    return _any(m, options)
+    return any_of(m, options)
 
 
 def rule_literal(m: cp_model.CpModel, pieces: list[PieceVars], geo: dict[str, RoomGeo],
                  rule: str, subject: str, form: Form) -> tuple[cp_model.IntVar, bool] | None:
     """A literal that implies the rule family of ``rule`` (an audit rule id) for the piece
     ``subject`` (the first piece the audit's record names: the seat of a viewing or talking
-    pair, the coffee table, the nightstand, the bed), in ``form``; with whether a proof from
-    it is sound (the pieces whose fronts matter are turned every way). None when the model
-    cannot state the rule or ``subject`` is not among ``pieces``."""
-    by_id = {pv.spec.id: pv for pv in pieces}
-    me = by_id.get(subject)
+    pair, the coffee table, the nightstand, the bed) or a piece interchangeable with it (the
+    model orders equal pieces, so which of two equal nightstands stands where is not
+    ``subject``'s to choose), in ``form``; with whether a proof from it is sound (the pieces
+    whose fronts matter are turned every way). None when the model cannot state the rule or
+    ``subject`` is not among ``pieces``."""
+    me = next((pv for pv in pieces if pv.spec.id == subject), None)
     fam = family(rule)
     if me is None or fam is None:
         return None
+    twins = [me] if me.locked else [pv for pv in pieces if not pv.locked
+                                     and interchangeable(pv.spec) == interchangeable(me.spec)]
+    got = [_subject_literal(m, pieces, geo, fam, pv, form) for pv in twins]
+    return any_of(m, [lit for lit, _ in got]), all(sound for _, sound in got)
+
+
+def _subject_literal(m: cp_model.CpModel, pieces: list[PieceVars], geo: dict[str, RoomGeo],
+                     fam: str, me: PieceVars, form: Form) -> tuple[cp_model.IntVar, bool]:
+    """:func:`rule_literal` for one subject piece ``me``."""
     others = [pv for pv in pieces if pv is not me]
     if fam == "group.view":
         screens = [pv for pv in others if "viewing" in pv.spec.groups and pv.spec.screen]
@@ -287,4 +298,4 @@ def rule_literal(m: cp_model.CpModel, pieces: list[PieceVars], geo: dict[str, Ro
         seats = [pv for pv in others if "conversation" in pv.spec.groups]
         lits = [_talk(m, me, s, far, form) for s in seats]
         sound = _turns_fully(me)
-    return _any(m, lits), sound
+    return any_of(m, lits), sound

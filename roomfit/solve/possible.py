@@ -38,12 +38,13 @@ from ortools.sat.python import cp_model
 from roomfit.audit.ideas import spots, visible_changes
 from roomfit.audit.quality import GroupCheck, Kind, quality
 from roomfit.plan.data import Layout, Placement, Plan
-from roomfit.rules.catalog import PieceSpec
+from roomfit.rules.catalog import PieceSpec, resolve_pieces
 from roomfit.rules.sets import RuleSet
 from roomfit.solve.building import BuildingFinding, excused
 from roomfit.solve.group import GroupSearch, judge
 from roomfit.solve.hard_rules import FAMILIES, Form, family, rule_literal
 from roomfit.solve.model import build_model, tune
+from roomfit.solve.symmetry import interchangeable
 from roomfit.solve.tally import Clock, Counters
 
 __all__ = ["SHARE", "Reach", "Possibility", "settle", "has_groups"]
@@ -101,11 +102,24 @@ def _misses(plan: Plan, rules: RuleSet) -> list[GroupCheck]:
     return out
 
 
-def _met(plan: Plan, rules: RuleSet, miss: GroupCheck) -> bool:
-    """True when ``plan`` meets every rule of ``miss``'s family for its subject piece."""
+def _twins(plan: Plan, rules: RuleSet, piece: str) -> set[str]:
+    """``piece`` and the movable pieces interchangeable with it (equal nightstands): which of
+    them meets a rule is no matter."""
+    specs = {s.id: s for s in resolve_pieces(plan, rules)}
+    if piece not in specs or plan.piece(piece).locked:
+        return {piece}
+    me = interchangeable(specs[piece])
+    return {pid for pid, s in specs.items() if not plan.piece(pid).locked
+            and interchangeable(s) == me}
+
+
+def _fails(plan: Plan, rules: RuleSet, miss: GroupCheck) -> int:
+    """How many checks of ``miss``'s rule family ``plan`` fails for its subject piece and the
+    pieces interchangeable with it."""
     fam = FAMILIES.get(family(miss.rule) or "", (miss.rule,))
-    return all(c.ok for c in quality(plan, rules)
-               if c.rule in fam and c.pieces[:1] == miss.pieces[:1])
+    ids = _twins(plan, rules, miss.pieces[0]) if miss.pieces else set()
+    return sum(not c.ok for c in quality(plan, rules)
+               if c.rule in fam and c.pieces[:1] and c.pieces[0] in ids)
 
 
 def _failures(plan: Plan, rules: RuleSet) -> int:
@@ -196,7 +210,7 @@ def settle(plan: Plan, rules: RuleSet, groups: list[tuple[list[str], list[PieceS
                     r: tuple[str, ...] = rules_of) -> None:
             out.append(Possibility(r, m.label, m.pieces, m.room, reach, detail))
 
-        if _met(current, rules, miss):
+        if _fails(current, rules, miss) < _fails(plan.with_layout(layout), rules, miss):
             verdict(Reach.MET, "met once another rule was won")
             continue
         if miss.rule == "group.desk_height":
@@ -238,16 +252,19 @@ def _second(plan: Plan, rules: RuleSet, group: tuple[list[str], list[PieceSpec]]
                            options, half, building)
     trial = (plan.with_layout(tuple((pid, where.get(pid, at)) for pid, at in current.layout))
              if where is not None else None)
-    if trial is not None and _met(trial, rules, miss) and _failures(trial, rules) < _failures(
-            current, rules) and _passes(trial, rules, building) and all(
-            visible_changes(spots(plan.with_layout(o), rules), spots(trial, rules)) for o in others):
+    base = _fails(current, rules, miss)
+    if (trial is not None and _fails(trial, rules, miss) < base
+            and _failures(trial, rules) < _failures(current, rules)
+            and _passes(trial, rules, building)
+            and all(visible_changes(spots(plan.with_layout(o), rules), spots(trial, rules))
+                    for o in others)):
         return Reach.MET, "the candidate was rearranged to meet it", trial
     where = _second_search(plan, rules, group, (rule,), [], options, end, building)
     if where is None:
         return (Reach.OPEN, "no arrangement that passes the audit and meets it was found in the "
                 "time; the placement model alone allows it", None)
     trial = plan.with_layout(tuple((pid, where.get(pid, at)) for pid, at in current.layout))
-    if not _met(trial, rules, miss):
+    if _fails(trial, rules, miss) >= base:
         return Reach.OPEN, "the arrangement found still misses it on the audit's measure", None
     cost = sorted({c.label for c in quality(trial, rules) if c.kind == Kind.GROUP and not c.ok})
     return (Reach.POSSIBLE, "an arrangement that meets it was found, but it misses "

@@ -22,7 +22,7 @@ from roomfit.plan.data import Plan, Trip
 from roomfit.rules.catalog import PieceSpec
 from roomfit.rules.groups import param
 from roomfit.solve.groups import conversation_terms, relation_group_terms, unmet_terms
-from roomfit.solve.hard_rules import view_literal
+from roomfit.solve.hard_rules import any_of, axis_sign, view_literal
 from roomfit.solve.rooms import RoomGeo
 from roomfit.solve.vars import PieceVars
 
@@ -91,20 +91,6 @@ def _on_axis(m: cp_model.CpModel, a: PieceVars, b: PieceVars, axis: int, tol: in
     m.add(_mid2(b, axis) - _mid2(a, axis) <= 2 * tol).only_enforce_if(lit)
 
 
-def _either(m: cp_model.CpModel, options: list[cp_model.IntVar]) -> cp_model.IntVar:
-    """A literal that may be true only when one of ``options`` is (false when there is none)."""
-    ok = m.new_bool_var("")
-    if options:
-        m.add_bool_or(options).only_enforce_if(ok)
-    else:
-        m.add(ok == 0)
-    return ok
-
-
-def _axis_sign(d: tuple[int, int]) -> tuple[int, int]:
-    return (0, d[0]) if d[0] != 0 else (1, d[1])
-
-
 def facing_range(seat: PieceSpec, tv: PieceSpec) -> tuple[int, int]:
     """Distance (mm) from a seat's front to a facing TV's front: ``view_min`` to ``view_max``
     screen diagonals (catalogue data, with its sources); (0, 0) when either is not given."""
@@ -128,11 +114,11 @@ def _in_front(m: cp_model.CpModel, table: PieceVars, seat: PieceVars, tol: int) 
         p = m.new_bool_var("")
         m.add_implication(p, lit)
         m.add_bool_or(tlits).only_enforce_if(p)
-        axis, sign = _axis_sign(side_direction("front", rot))
+        axis, sign = axis_sign(side_direction("front", rot))
         _gap_in(m, seat, table, axis, sign, lo, hi, p)
         _on_axis(m, seat, table, 1 - axis, tol, p)
         options.append(p)
-    return _either(m, options)
+    return any_of(m, options)
 
 
 def _beside_head(m: cp_model.CpModel, stand: PieceVars, bed: PieceVars) -> cp_model.IntVar:
@@ -143,7 +129,7 @@ def _beside_head(m: cp_model.CpModel, stand: PieceVars, bed: PieceVars) -> cp_mo
         slits = [t for (sr, _), t in stand.alts.items() if sr == r]
         if not slits:
             continue
-        head_axis, head_sign = _axis_sign(side_direction("back", rot))
+        head_axis, head_sign = axis_sign(side_direction("back", rot))
         length = bed.size(rot)[head_axis]
         for sign in (1, -1):
             p = m.new_bool_var("")
@@ -158,7 +144,7 @@ def _beside_head(m: cp_model.CpModel, stand: PieceVars, bed: PieceVars) -> cp_mo
                 m.add(mid <= 2 * _hi(m, bed, head_axis)).only_enforce_if(p)
                 m.add(mid >= 2 * _hi(m, bed, head_axis) - length).only_enforce_if(p)
             options.append(p)
-    return _either(m, options)
+    return any_of(m, options)
 
 
 def _relation_terms(m: cp_model.CpModel, pv: PieceVars, t: PieceVars, relation: str,
