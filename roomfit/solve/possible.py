@@ -173,8 +173,8 @@ class _HardSearch(GroupSearch):
     hard: tuple[tuple[str, str], ...] = ()
     avoid: tuple[dict[str, Placement], ...] = ()
 
-    def _start(self, stage: int) -> None:
-        super()._start(stage)
+    def _start(self, stage: int, again: bool = False) -> None:
+        super()._start(stage, again)
         built = self.built
         assert built is not None
         movable = [pv for pv in built.pieces if not pv.locked]
