@@ -32,11 +32,13 @@ from __future__ import annotations
 import time
 from dataclasses import dataclass, replace
 from enum import StrEnum
+from typing import TYPE_CHECKING
 
 from ortools.sat.python import cp_model
 
 from roomfit.audit.ideas import spots, visible_changes
 from roomfit.audit.quality import GroupCheck, Kind, quality
+from roomfit.audit.routes import score_routes
 from roomfit.plan.data import Layout, Placement, Plan
 from roomfit.rules.catalog import PieceSpec, resolve_pieces
 from roomfit.rules.sets import RuleSet
@@ -47,7 +49,10 @@ from roomfit.solve.model import build_model, tune
 from roomfit.solve.symmetry import interchangeable
 from roomfit.solve.tally import Clock, Counters
 
-__all__ = ["SHARE", "Reach", "Possibility", "settle", "has_groups"]
+if TYPE_CHECKING:
+    from roomfit.solve.search import Candidate, SolveOptions
+
+__all__ = ["SHARE", "Reach", "Possibility", "settle", "settle_first", "share"]
 
 #: Share of the solve's time limit kept for settling the first candidate's missed group rules
 #: (proofs and second searches; unused when it misses none).
@@ -85,9 +90,27 @@ class Possibility:
         return f"{lead}: {self.label} ({self.detail})"
 
 
-def has_groups(specs: tuple[PieceSpec, ...] | list[PieceSpec]) -> bool:
-    """True when some piece takes part in a functional group (the check may then run)."""
-    return any(s.groups for s in specs)
+def share(time_limit: float, specs: tuple[PieceSpec, ...] | list[PieceSpec]) -> float:
+    """Seconds of a solve's ``time_limit`` kept for the check (:data:`SHARE`), once the flat
+    has a valid arrangement (never from the first one); 0 when no piece of ``specs`` takes
+    part in a functional group."""
+    return SHARE * time_limit if any(s.groups for s in specs) else 0.0
+
+
+def settle_first(plan: Plan, rules: RuleSet, groups: list[tuple[list[str], list[PieceSpec]]],
+                 candidates: list[Candidate], options: SolveOptions, deadline: float,
+                 building: tuple[BuildingFinding, ...] = ()) -> tuple[Possibility, ...]:
+    """:func:`settle` on the first of ``candidates``; a rearranged first candidate replaces
+    it, judged and scored again (no longer proven optimal; the objective stays the
+    search's)."""
+    better, out = settle(plan, rules, groups, candidates[0].layout,
+                         [c.layout for c in candidates[1:]], options, deadline, building)
+    if better is not None:
+        done = plan.with_layout(better)
+        candidates[0] = replace(candidates[0], layout=better, optimal=False,
+                                audit=judge(done, rules, widths=True),
+                                routes=score_routes(done, rules))
+    return out
 
 
 def _misses(plan: Plan, rules: RuleSet) -> list[GroupCheck]:

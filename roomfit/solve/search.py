@@ -234,9 +234,7 @@ def solve(plan: Plan, rules: RuleSet, options: SolveOptions | None = None,
     # three-room flat on a loaded machine (the 20 s solve ended at 21.4 s with 0.25 s each)
     specs = resolve_pieces(plan, rules)
     audit_reserve = min(0.2 * options.time_limit, 0.6 * options.candidates)
-    # a share for settling the first candidate's missed group rules (roomfit.solve.possible),
-    # taken from the time for further candidates, never from the first valid arrangement
-    settling = SHARE * options.time_limit if confirm and has_groups(specs) else 0.0
+    settling = share(options.time_limit, specs) if confirm else 0.0  # roomfit.solve.possible
     clock = Clock(options.time_limit, audit_reserve)
     counters = Counters()
     # small groups first: they finish early and leave their unused time to the larger ones
@@ -296,14 +294,8 @@ def solve(plan: Plan, rules: RuleSet, options: SolveOptions | None = None,
         return SolveResult(Status.TIMEOUT, (), None, stats(),
                            ("every combined arrangement failed the audit of the whole flat",),
                            building)
-    possible: tuple[Possibility, ...] = ()
-    if settling:
-        better, possible = settle(plan, rules, groups, candidates[0].layout,
-                                  [c.layout for c in candidates[1:]], options,
-                                  min(clock.deadline - audit_reserve / options.candidates,
-                                      time.monotonic() + settling), building)
-        if better is not None:
-            candidates[0] = _rescored(plan, rules, candidates[0], better)
+    end = min(clock.deadline - audit_reserve / options.candidates, time.monotonic() + settling)
+    possible = settle_first(plan, rules, groups, candidates, options, end, building) if settling else ()
     # "optimal" when every candidate is proven optimal (under the diversity rules)
     status = Status.OPTIMAL if all(c.optimal for c in candidates) else Status.FOUND
     return SolveResult(status, tuple(candidates), None, stats(),
