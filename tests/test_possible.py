@@ -123,12 +123,12 @@ def test_a_desk_too_high_is_impossible_without_a_search() -> None:
 def test_a_rearranged_first_candidate_is_judged_again(monkeypatch: pytest.MonkeyPatch) -> None:
     # the solve takes the check's arrangement as its first candidate, with the audit and the
     # route scores of that arrangement (not the search's), and no claim of optimality
-    import roomfit.solve.search as search
+    import roomfit.solve.possible as possible
 
     plan = _room(4500, 5000, [Piece("sofa", "sofa-3", ("r",)), Piece("tv", "tv-unit", ("r",))])
     rules = rules_for(plan)
     moved = (("sofa", Placement(1000, 2700, 180, "r")), ("tv", Placement(1300, 4600, 180, "r")))
-    monkeypatch.setattr(search, "settle", lambda *args: (moved, ()))
+    monkeypatch.setattr(possible, "settle", lambda *args: (moved, ()))
     result = solve(plan, rules, SolveOptions(candidates=1, time_limit=10.0, workers=1))
     first = result.candidates[0]
     assert first.layout == moved and not first.optimal
