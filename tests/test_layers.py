@@ -39,7 +39,7 @@ STAGE = {
     "solve.bound": 5, "solve.tally": 5,
     "solve.cuts": 5,
     "solve.building": 5, "solve.explain": 5, "solve.group": 6,
-    "solve.notes": 6, "solve.search": 6,
+    "solve.notes": 6, "solve.search": 6, "solve.possible": 6,
     "solve.outcome": 6,
     "present": 7, "present.canvas": 7, "present.building": 7, "present.clearances": 7,
     "present.draw": 7, "present.export": 7, "present.compare": 7,

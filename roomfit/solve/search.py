@@ -51,6 +51,7 @@ from roomfit.solve.group import (
     routines_of,
 )
 from roomfit.solve.notes import fewer, held_up, several_rooms
+from roomfit.solve.possible import Possibility, settle_first, share
 from roomfit.solve.tally import Clock, Counters
 
 if TYPE_CHECKING:
@@ -278,7 +279,7 @@ def solve(plan: Plan, rules: RuleSet, options: SolveOptions | None = None,
                            None, stats())
     searches += [GroupSearch(plan, rules, rooms, group_specs, options, clock, progress, counters,
                              building) for rooms, group_specs in groups]
-    _search(searches, options, clock, _ADVICE_SHARE if confirm else 0.0)
+    _search(searches, options, clock, _ADVICE_SHARE if confirm else 0.0, settling)
     for s, (rooms, group_specs) in zip(searches, groups, strict=True):
         if s.impossible:
             expl = (s.explain_exhausted() if s.sound else
@@ -299,16 +300,17 @@ def solve(plan: Plan, rules: RuleSet, options: SolveOptions | None = None,
     # "optimal" when every candidate is proven optimal (under the diversity rules)
     status = Status.OPTIMAL if all(c.optimal for c in candidates) else Status.FOUND
     return SolveResult(status, tuple(candidates), None, stats(),
-                       fewer(plan, searches, options.candidates, len(candidates)), building)
+                       fewer(plan, searches, options.candidates, len(candidates)), building, possible)
 
 
 def _search(searches: list[GroupSearch], options: SolveOptions, clock: Clock,
-            keep: float) -> None:
+            keep: float, settling: float = 0.0) -> None:
     """The phases of the search over every group: first one layout for every group (a valid
     arrangement of the whole flat), then the alternatives, each taken at once; then the
     lower bounds, and every layout taken at once improved with the time left. A group
     still without a layout after its share searches on, leaving ``keep`` of the time left
-    for confirming advice when it holds pieces allowed in several rooms (``_advice``)."""
+    for confirming advice when it holds pieces allowed in several rooms (``_advice``); once
+    the flat has a valid arrangement, ``settling`` s are kept for the group-rule check."""
     lanes = max(1, options.workers)
     for s in searches:
         s.work_share = min(1.0, lanes / len(searches))
@@ -318,6 +320,7 @@ def _search(searches: list[GroupSearch], options: SolveOptions, clock: Clock,
     _phase(searches, lanes, clock, 1, _FIRST_PHASE_SHARE if more else _SEARCH_SHARE)
     if not all(s.found or s.exhausted for s in searches):  # a group without a layout
         _phase(searches, lanes, clock, 1, 1.0 - (keep if several_rooms(searches) else 0.0))
+    clock.reserve += settling if all(s.found for s in searches) else 0.0  # the group-rule check
     if more and all(s.found for s in searches):
         _phase(searches, lanes, clock, options.candidates, 1.0)
     for s in searches:
