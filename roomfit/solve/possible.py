@@ -98,11 +98,17 @@ def share(time_limit: float, specs: tuple[PieceSpec, ...] | list[PieceSpec]) -> 
 
 
 def settle_first(plan: Plan, rules: RuleSet, groups: list[tuple[list[str], list[PieceSpec]]],
-                 candidates: list[Candidate], options: SolveOptions, deadline: float,
-                 building: tuple[BuildingFinding, ...] = ()) -> tuple[Possibility, ...]:
-    """:func:`settle` on the first of ``candidates``; a rearranged first candidate replaces
-    it, judged and scored again (no longer proven optimal; the objective stays the
-    search's)."""
+                 candidates: list[Candidate], options: SolveOptions, clock: Clock,
+                 settling: float, building: tuple[BuildingFinding, ...] = ()
+                 ) -> tuple[Possibility, ...]:
+    """:func:`settle` on the first of ``candidates`` within ``settling`` s (none: no check),
+    leaving one candidate's share of the clock's audit reserve (the reserve less the
+    ``settling`` the search kept); a rearranged first candidate replaces it, judged and
+    scored again (no longer proven optimal; the objective stays the search's)."""
+    if not settling:
+        return ()
+    audits = (clock.reserve - settling) / options.candidates
+    deadline = min(clock.deadline - audits, time.monotonic() + settling)
     better, out = settle(plan, rules, groups, candidates[0].layout,
                          [c.layout for c in candidates[1:]], options, deadline, building)
     if better is not None:

@@ -295,8 +295,7 @@ def solve(plan: Plan, rules: RuleSet, options: SolveOptions | None = None,
         return SolveResult(Status.TIMEOUT, (), None, stats(),
                            ("every combined arrangement failed the audit of the whole flat",),
                            building)
-    end = min(clock.deadline - audit_reserve / options.candidates, time.monotonic() + settling)
-    possible = settle_first(plan, rules, groups, candidates, options, end, building) if settling else ()
+    possible = settle_first(plan, rules, groups, candidates, options, clock, settling, building)
     # "optimal" when every candidate is proven optimal (under the diversity rules)
     status = Status.OPTIMAL if all(c.optimal for c in candidates) else Status.FOUND
     return SolveResult(status, tuple(candidates), None, stats(),
