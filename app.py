@@ -388,7 +388,7 @@ def _results(done: dict[str, Any]) -> None:
         cols = st.columns(per_row)
         for i in range(start, min(start + per_row, len(shown))):
             with cols[i - start], panel(f"arrangement {i + 1}"):
-                _candidate(i, shown[i])
+                _candidate(i, shown[i], result.possible if i == 0 else ())
     st.markdown("**Side by side** (★ best value)")
     st.table(page.comparison_rows(table))
     st.download_button("Client report with every arrangement (.html)", both,
@@ -397,7 +397,7 @@ def _results(done: dict[str, Any]) -> None:
     caution()
 
 
-def _candidate(i: int, a: dict[str, Any]) -> None:
+def _candidate(i: int, a: dict[str, Any], possible: Any = ()) -> None:
     row = a["row"]
     st.markdown(f"#### Arrangement {i + 1}")
     st.caption(text(row.idea))
@@ -416,6 +416,9 @@ def _candidate(i: int, a: dict[str, Any]) -> None:
                       for q in quality_record(row.quality)], hide_index=True)
     with st.expander("Daily routes"):
         st.table(page.route_rows(row.routes))
+    if possible:  # the first arrangement's missed group rules, checked by the solver
+        with st.expander("Missed group rules, checked"):
+            st.markdown("\n".join(f"- {text(p.text)}" for p in possible))
     if a["moves"] is not None:
         with st.expander("Moving list from today's arrangement"):
             st.markdown("\n".join(f"- {text(m)}" for m in a["moves"]) or "Nothing moves.")

@@ -369,6 +369,9 @@ def test_solve_compare_keep_and_check_on_the_page() -> None:
 
     assert plan.layout and first["moves"] == moves(plan, first["row"].plan, rules)
     assert any(e.label == "Moving list from today's arrangement" for e in at.expander)
+    # the first arrangement's missed group rules, as the solver checked them, when it has any
+    assert any(e.label == "Missed group rules, checked" for e in at.expander) == bool(
+        result.possible)
     # keep the second arrangement: every piece gets its place, and the check tab agrees
     at.button(key="keep_1").click()
     at.run(timeout=120)
