@@ -67,10 +67,15 @@ def check_rooms(ctx: Floor) -> list[Finding]:
 
 
 def check_overlap(ctx: Floor) -> list[Finding]:
+    """Standing pieces overlap neither each other nor a fitting; a piece that lies flat (a
+    rug) may lie under pieces but not under a fitting (a kitchen run or a WC stands on the
+    floor itself, so a rug there is cut or rucked)."""
     out: list[Finding] = []
     items = [(pid, pc.shape, pc.placement.room) for pid, pc in standing(ctx)]
+    flat = [(pid, pc.shape, pc.placement.room) for pid, pc in ctx.placed.items()
+            if geo.lies_flat(pc.spec)]
     fixtures = [(f.id, ctx.fixtures[f.id], f.room) for f in ctx.plan.fixtures]
-    for i, (a, sa, room) in enumerate(items):
+    for i, (a, sa, room) in enumerate(items + flat):
         for b, sb, _ in items[i + 1:] + fixtures:
             if not sa.intersects(sb):
                 continue

@@ -37,7 +37,7 @@ from roomfit.audit.transfer import clear_width, wc_transfer
 from roomfit.rules.catalog import PieceSpec
 from roomfit.rules.groups import param
 
-__all__ = ["RULES"]
+__all__ = ["RULES", "RUG_CENTRES"]
 
 def _view(ctx: Ctx) -> list[GroupCheck]:
     out: list[GroupCheck] = []
@@ -219,8 +219,9 @@ def _talk(ctx: Ctx) -> list[GroupCheck]:
     return out
 
 
-#: The centre of each group a rug may lie under, in the order a rug is given to a group.
-_RUG_CENTRES: tuple[Callable[[PieceSpec], bool], ...] = (
+#: The centre of each group a rug may lie under, in the order a rug is given to a group (the
+#: placement model aims at the same piece: ``roomfit.solve.groups.rug_terms``).
+RUG_CENTRES: tuple[Callable[[PieceSpec], bool], ...] = (
     lambda s: any(r == "in_front" for r, _ in s.relations),  # coffee table
     lambda s: "dining" in s.groups,
     lambda s: "sleeping" in s.groups and s.category == "bed",
@@ -232,7 +233,7 @@ def _rug(ctx: Ctx) -> list[GroupCheck]:
     out: list[GroupCheck] = []
     need = param("rug.under")
     for rid, rug in ctx.in_room_all(lambda s: "rug" in s.groups):
-        centres = next((c for pred in _RUG_CENTRES if (c := ctx.in_room(rug.at.room, pred))), [])
+        centres = next((c for pred in RUG_CENTRES if (c := ctx.in_room(rug.at.room, pred))), [])
         if not centres:
             continue
         qid, p = max(centres, key=lambda qp: qp[1].shape.intersection(rug.shape).area)

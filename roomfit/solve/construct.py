@@ -27,6 +27,7 @@ from dataclasses import dataclass, replace
 
 from ortools.sat.python import cp_model
 
+from roomfit.audit.geometry import lies_flat
 from roomfit.plan.data import Placement, Plan, Trip
 from roomfit.rules.catalog import PieceSpec
 from roomfit.rules.sets import RuleSet
@@ -55,7 +56,11 @@ FROM_PIECES = 14
 
 
 def _demand(spec: PieceSpec) -> int:
-    """Floor (mm2) of a piece's footprint and use zones: the order of placement."""
+    """Floor (mm2) of a piece's footprint and use zones: the order of placement. A rug takes
+    no floor from the others (:func:`~roomfit.audit.geometry.lies_flat`): it goes in last,
+    under the group already placed."""
+    if lies_flat(spec):
+        return 0
     return spec.width * spec.depth + sum(
         (spec.width if z.side in ("front", "back") else spec.depth) * z.depth for z in spec.zones)
 

@@ -3,7 +3,8 @@
 Two steps. First quick pre-checks that are proofs on their own, independent of the model:
 a piece larger than the bounding box of every room it may stand in (in both turns), or the
 pieces assigned to a room needing more floor than the room has once fittings, their use
-zones and the door clearances are taken out (footprints may not overlap each other nor those).
+zones and the door clearances are taken out (footprints may not overlap each other nor those;
+a rug is floor to them and not counted).
 
 Then the model: every rule group (each piece's presence, its use zones, its wall, each
 room's turning space, each door's clearance, each window band, each fitting's use zone) sits
@@ -25,7 +26,13 @@ from ortools.sat.python import cp_model
 from shapely.geometry.base import BaseGeometry
 from shapely.ops import unary_union
 
-from roomfit.audit.geometry import door_shapes, fixture_polygon, fixture_zone, room_polygon
+from roomfit.audit.geometry import (
+    door_shapes,
+    fixture_polygon,
+    fixture_zone,
+    lies_flat,
+    room_polygon,
+)
 from roomfit.plan.data import Plan
 from roomfit.rules.catalog import PieceSpec, load_catalog
 from roomfit.rules.sets import RuleSet
@@ -86,7 +93,7 @@ def precheck(plan: Plan, rules: RuleSet, specs: tuple[PieceSpec, ...]) -> Explan
                 (Fix(f"without the {spec.label} the rest fits", spec.id),))
     shapes = door_shapes(plan, rules)
     for room in plan.rooms:
-        mine = [s for s in specs if s.rooms == (room.id,)]
+        mine = [s for s in specs if s.rooms == (room.id,) and not lies_flat(s)]  # a rug is floor
         if not mine:
             continue
         poly = room_polygon(room)

@@ -11,7 +11,8 @@ not say:
 - a nightstand stands on a side the bed is used from (:func:`roomfit.audit.group_measures.used_long_sides`);
 - seats of a conversation group stand within speaking distance of another seat (L1 between
   front middles, which bounds the audit's straight-line distance from above) and neither
-  behind the other's back (the audit's ``group.talk_turn``).
+  behind the other's back (the audit's ``group.talk_turn``);
+- a rug has its group's centre piece on it (:func:`rug_terms`, the audit's ``group.rug``).
 
 :func:`main_differs` gives the search the "must differ in a way a client sees" rule between
 candidates (the measure is ``roomfit.audit.ideas``).
@@ -22,12 +23,14 @@ the weight makes it as good as hard wherever the room allows it.
 
 from __future__ import annotations
 
+import math
 from typing import TYPE_CHECKING
 
 from ortools.sat.python import cp_model
 
 from roomfit.audit.geometry import room_polygon, side_direction
 from roomfit.audit.group_measures import used_long_sides
+from roomfit.audit.group_rules import RUG_CENTRES
 from roomfit.audit.ideas import is_main
 from roomfit.plan.data import Placement, Plan
 from roomfit.rules.groups import param, solver_weight
@@ -35,8 +38,8 @@ from roomfit.rules.groups import param, solver_weight
 if TYPE_CHECKING:
     from roomfit.solve.vars import PieceVars
 
-__all__ = ["unmet_terms", "relation_group_terms", "conversation_terms", "main_differs", "doubled_mid",
-           "dot"]
+__all__ = ["unmet_terms", "relation_group_terms", "conversation_terms", "rug_overlap",
+           "rug_literal", "rug_terms", "main_differs", "doubled_mid", "dot"]
 
 
 def unmet_terms(unmet: cp_model.LinearExprT) -> list[cp_model.LinearExprT]:
@@ -137,6 +140,82 @@ def conversation_terms(m: cp_model.CpModel, pieces: list[PieceVars]) -> list[cp_
             near = m.new_bool_var("")
             m.add_bool_or([lit for (a, b), lit in pair.items() if i in (a, b)]).only_enforce_if(near)
             terms += unmet_terms(1 - near)
+    return terms
+
+
+def rug_overlap(w: int, d: int, necessary: bool = False) -> tuple[int, int]:
+    """The overlap with its rug (mm along x, along y) asked of a centre piece turned to
+    ``w`` x ``d``: enough for ``rug.under`` (share s) of its area, ``ceil(sqrt(s) w)`` by
+    ``ceil(sqrt(s) d)``; with ``necessary``, what every overlap of that share has: an
+    ``a`` x ``b`` overlap with ``a b >= s w d``, ``a <= w`` and ``b <= d`` has ``a >= s w``
+    and ``b >= s d`` (rounded down).
+
+    >>> rug_overlap(1200, 600), rug_overlap(1200, 600, necessary=True)
+    ((849, 425), (600, 300))
+    """
+    s = param("rug.under").value
+    if necessary:
+        return math.floor(s * w), math.floor(s * d)
+    return math.ceil(math.sqrt(s) * w), math.ceil(math.sqrt(s) * d)
+
+
+def _on_rug(m: cp_model.CpModel, rug: PieceVars, c: PieceVars | None, room: str,
+            before: list[PieceVars], necessary: bool) -> cp_model.IntVar:
+    """A literal that implies: ``rug`` lies in ``room``, none of ``before`` stands there, and
+    ``c`` (unless None) stands there with its footprint over the rug by at least
+    :func:`rug_overlap` along x and y. An overlap of at least k along x is ``c.x + w - rug.x
+    >= k`` and ``rug.x + w_rug - c.x >= k`` with k at most both widths (k <= w holds by
+    :func:`rug_overlap`, k <= w_rug is asked)."""
+    on = m.new_bool_var("")
+    cons = [rug.in_room(room) >= 1, *(pv.in_room(room) == 0 for pv in before)]
+    if c is not None:
+        here = [(lit, rug_overlap(*c.size(rot), necessary)) for (r, rot), lit in c.alts.items() if r == room]
+        kx = cp_model.LinearExpr.weighted_sum([lit for lit, _ in here], [k[0] for _, k in here])
+        ky = cp_model.LinearExpr.weighted_sum([lit for lit, _ in here], [k[1] for _, k in here])
+        (cxe, cye), (rxe, rye) = c.ends(m), rug.ends(m)
+        cons += [c.in_room(room) >= 1, cxe - rug.x >= kx, rxe - c.x >= kx, cye - rug.y >= ky,
+                 rye - c.y >= ky, rug.width_expr() >= kx, rug.depth_expr() >= ky]
+    for con in cons:
+        m.add(con).only_enforce_if(on)
+    return on
+
+
+def rug_literal(m: cp_model.CpModel, rug: PieceVars, pieces: list[PieceVars],
+                necessary: bool = False) -> cp_model.IntVar | None:
+    """A literal that implies, wherever ``rug`` lies: the piece the audit measures on it
+    (of the first kind in :data:`~roomfit.audit.group_rules.RUG_CENTRES` with a piece in the
+    rug's room: a coffee table, else a dining table, a bed, a seat) overlaps it by
+    :func:`rug_overlap` (``necessary`` or sufficient) along x and y, or the room holds no
+    such piece (the audit then measures nothing). None when there is no such piece at all."""
+    if not any(pred(pv.spec) for pred in RUG_CENTRES for pv in pieces):
+        return None
+    options = []
+    for room in dict.fromkeys(r for r, _ in rug.alts):
+        before: list[PieceVars] = []  # pieces of the kinds that come first
+        for pred in RUG_CENTRES:
+            kind = [pv for pv in pieces if pred(pv.spec) and any(r == room for r, _ in pv.alts)]
+            options += [_on_rug(m, rug, c, room, before, necessary) for c in kind]
+            before += kind
+            if any({r for r, _ in pv.alts} == {room} for pv in kind):
+                break  # always one of this kind there: the later kinds, or none, never count
+        else:
+            options.append(_on_rug(m, rug, None, room, before, necessary))
+    ok = m.new_bool_var("")
+    m.add_bool_or(options).only_enforce_if(ok)
+    return ok
+
+
+def rug_terms(m: cp_model.CpModel, pieces: list[PieceVars]) -> list[cp_model.LinearExprT]:
+    """The group weight for each rug (group ``rug``) whose group's centre piece does not
+    stand on it with ``rug.under`` of its area (data/groups.toml), asked in the sufficient
+    form of :func:`rug_overlap`."""
+    terms: list[cp_model.LinearExprT] = []
+    for rug in pieces:
+        if "rug" not in rug.spec.groups:
+            continue
+        ok = rug_literal(m, rug, pieces)
+        if ok is not None:
+            terms += unmet_terms(1 - ok)
     return terms
 
 

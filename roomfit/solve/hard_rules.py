@@ -34,6 +34,9 @@ audit's ids (pairs the audit measures on one pair of pieces go together):
 - ``group.talk`` + ``group.talk_turn``: some other seat of the conversation group in the
   room, its front middle within speaking distance of this seat's (necessary: along x and
   along y; sufficient: the L1 distance) and not behind this seat's back (exact).
+- ``group.rug``: the piece the audit measures on the rug (:func:`~roomfit.solve.groups.rug_literal`)
+  overlaps it along x and along y by :func:`~roomfit.solve.groups.rug_overlap` in either
+  form, or the rug's room holds no such piece.
 
 A piece whose front matters (seats, screens) and that the model turns only in half turns
 (symmetric pieces) makes the necessary form unsound: :func:`rule_literal` then says so.
@@ -49,7 +52,7 @@ from ortools.sat.python import cp_model
 from roomfit.audit.geometry import side_direction
 from roomfit.audit.group_measures import reach_range, used_long_sides, view_range
 from roomfit.rules.groups import param
-from roomfit.solve.groups import dot, doubled_mid
+from roomfit.solve.groups import dot, doubled_mid, rug_literal
 from roomfit.solve.rooms import RoomGeo
 from roomfit.solve.symmetry import interchangeable
 from roomfit.solve.vars import PieceVars
@@ -73,6 +76,7 @@ FAMILIES: dict[str, tuple[str, ...]] = {
     "group.bedside": ("group.bedside",),
     "group.bed_window": ("group.bed_window",),
     "group.talk": ("group.talk", "group.talk_turn"),
+    "group.rug": ("group.rug",),
 }
 
 
@@ -293,6 +297,9 @@ def _subject_literal(m: cp_model.CpModel, pieces: list[PieceVars], geo: dict[str
         sound = True
     elif fam == "group.bed_window":
         lits, sound = [_bed_window(m, me, geo)], True
+    elif fam == "group.rug":
+        lit = rug_literal(m, me, pieces, necessary=form == Form.NECESSARY)
+        lits, sound = [] if lit is None else [lit], True
     else:
         far = param("talk.distance").mm
         seats = [pv for pv in others if "conversation" in pv.spec.groups]

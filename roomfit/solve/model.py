@@ -18,6 +18,9 @@ How the plan becomes a model (see ``docs/solver.md``):
   obstacles (outside floor and fittings): zones may overlap zones, door approach floor and the
   turning space, but no furniture. Tall pieces share one more ``NoOverlap2D`` with the window
   bands.
+- A piece that lies flat (a rug, :func:`~roomfit.audit.geometry.lies_flat`) is floor to
+  everything else, as in the audit: it is in none of the above, nor in the gap rules; its own
+  ``NoOverlap2D`` keeps it off the outside floor and the fittings only.
 - A wheelchair turning circle of diameter D fits inside two crossing D x 0.71 D rectangles
   (a point of the circle outside both would need cos and sin above 0.71 at once); we keep that
   cross (as three disjoint rectangles) free of furniture. A square turning space is a D x D box.
@@ -39,7 +42,7 @@ import shapely
 from ortools.sat.python import cp_model
 from shapely import box
 
-from roomfit.audit.geometry import side_direction
+from roomfit.audit.geometry import lies_flat, side_direction
 from roomfit.plan.data import Plan, Trip
 from roomfit.rules.catalog import PieceSpec, ZoneReq
 from roomfit.rules.sets import RuleSet
@@ -172,20 +175,27 @@ def build_model(
     pieces = [_piece_vars(ctx, spec) for spec in specs]
     prefs = load_preferences()
     _against_walls(ctx, pieces, set(prefs["wall"]["categories"]))
+    # footprints of standing pieces, and of pieces that lie flat (rugs: floor to the rest)
     fp: dict[str, list[tuple[PieceVars, int, object, object]]] = {r: [] for r in geo}
+    flat: dict[str, list[tuple[PieceVars, int, object, object]]] = {r: [] for r in geo}
     for pv in pieces:
         for (r, rot), lit in pv.alts.items():
             w, d = pv.size(rot)
-            fp[r].append((pv, rot, m.new_optional_fixed_size_interval_var(pv.x, w, lit, ""),
-                          m.new_optional_fixed_size_interval_var(pv.y, d, lit, "")))
+            (flat if lies_flat(pv.spec) else fp)[r].append(
+                (pv, rot, m.new_optional_fixed_size_interval_var(pv.x, w, lit, ""),
+                 m.new_optional_fixed_size_interval_var(pv.y, d, lit, "")))
+    standing = [pv for pv in pieces if not lies_flat(pv.spec)]
     related = _related_pairs(pieces)
     for r, g in geo.items():
-        for own in ([[f for f in fp[r] if f[0] is pv] for pv in pieces] if apart else [fp[r]]):
+        for own in ([[f for f in fp[r] if f[0] is pv] for pv in standing] if apart else [fp[r]]):
             if own or not apart:
                 _floor_rules(ctx, g, own, strengthen)
+        for pv in pieces:  # a rug keeps off the outside floor and the fittings, nothing else
+            if rug := [(ix, iy) for q, _, ix, iy in flat[r] if q is pv]:
+                _no_overlap(m, rug + [_fixed_box(m, rect) for rect in g.hard])
         _zone_rules(ctx, g, pieces, fp[r])
         if strengthen:
-            _gap_rules(m, pieces, g, route, grid, related)
+            _gap_rules(m, standing, g, route, grid, related)
     terms = extra_terms(m, pieces) if extra_terms is not None and objective else []
     routines = plan.routines if routines is None else routines
     movable = sum(not pv.locked for pv in pieces)

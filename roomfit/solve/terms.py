@@ -21,7 +21,7 @@ from roomfit.audit.places import end_point
 from roomfit.plan.data import Plan, Trip
 from roomfit.rules.catalog import PieceSpec
 from roomfit.rules.groups import param
-from roomfit.solve.groups import conversation_terms, relation_group_terms, unmet_terms
+from roomfit.solve.groups import conversation_terms, relation_group_terms, rug_terms, unmet_terms
 from roomfit.solve.hard_rules import any_of, axis_sign, view_literal
 from roomfit.solve.rooms import RoomGeo
 from roomfit.solve.vars import PieceVars
@@ -239,6 +239,7 @@ def add_objective(m: cp_model.CpModel, pieces: list[PieceVars], geo: dict[str, R
     terms += _routine_terms(m, pieces, plan, routines, prefs) if plan is not None else []
     terms += _align_terms(m, pieces, prefs)
     terms += conversation_terms(m, pieces)
+    terms += rug_terms(m, pieces)
     terms += extra or []
     if not terms:
         return False
