@@ -198,3 +198,24 @@ def test_construction_lays_rugs_last() -> None:
                               ("shelf", "bookcase")])
     order = [[s.id for s in u] for u in units(list(resolve_pieces(plan, rules_for(plan))))]
     assert order[-1] == ["rug"]
+
+
+def test_a_rug_that_cannot_reach_its_group_is_proven_so() -> None:
+    # the coffee table (1100 x 600) is locked at the back of a 1300 mm wide alcove: a rug
+    # whose shorter side is 1400 mm cannot enter it, so no arrangement has the table on it
+    # (worked by hand: the table starts 700 mm inside the alcove)
+    outline = ((0, 0), (4000, 0), (4000, 3000), (2300, 3000), (2300, 4500), (1000, 4500),
+               (1000, 3000), (0, 3000))
+    plan = Plan("alcove", (Room("r", "Room", "living", outline),),
+                doors=(Door("d", ("r", "outside"), (2000, 0), 1000, Leaf.SLIDING),),
+                furniture=(Piece("coffee", "coffee-table", ("r",),
+                                 placement=Placement(1100, 3700, 0, "r"), locked=True),
+                           Piece("rug", "rug", ("r",))))
+    rules = rules_for(plan)
+    result = solve(plan, rules, SolveOptions(candidates=1, time_limit=60.0, seed=0, workers=1))
+    assert result.candidates
+    done = plan.with_layout(result.candidates[0].layout)
+    assert audit(done, rules).passed
+    assert [c.measured for c in _rug_checks(done, rules)] == [0.0]
+    verdicts = [(p.rules, p.reach.value) for p in result.possible]
+    assert verdicts == [(("group.rug",), "impossible")]
