@@ -219,3 +219,54 @@ def test_a_rug_that_cannot_reach_its_group_is_proven_so() -> None:
     assert [c.measured for c in _rug_checks(done, rules)] == [0.0]
     verdicts = [(p.rules, p.reach.value) for p in result.possible]
     assert verdicts == [(("group.rug",), "impossible")]
+
+
+def _forms(placed: dict[str, Placement], pieces: list[tuple[str, str]]) -> tuple[bool, bool, bool]:
+    """(audit's group.rug passes, necessary form holds, sufficient form holds) for ``pieces``
+    locked at ``placed`` in a 5 x 5 m room."""
+    base = _plan(5000, 5000, pieces, placed=placed)
+    plan = Plan(base.name, base.rooms, base.doors, furniture=tuple(
+        Piece(p.id, p.type, p.rooms, placement=p.placement, locked=True) for p in base.furniture))
+    rules = rules_for(plan)
+    checks = _rug_checks(plan, rules)
+    assert len(checks) == 1
+    held = []
+    for form in (None, Form.NECESSARY, Form.SUFFICIENT):
+        built = build_model(plan, rules, list(resolve_pieces(plan, rules)), ["r"], 50,
+                            strengthen=False, relaxed=True, objective=False)
+        if form is not None:
+            got = rule_literal(built.model, built.pieces, built.rooms, "group.rug", "rug", form)
+            assert got is not None
+            built.model.add(got[0] == 1)
+        held.append(cp_model.CpSolver().solve(built.model) in (cp_model.OPTIMAL, cp_model.FEASIBLE))
+    assert held[0], "the placements break a clearance rule of the relaxed model"
+    return checks[0].ok, held[1], held[2]
+
+
+@pytest.mark.parametrize("x, y, expect", [
+    # coffee table 1100 x 600 and a 2000 x 1400 rug at (1000, 1000); overlaps by hand:
+    (1500, 1400, (True, True, True)),    # wholly on the rug: 100 %
+    (2222, 1975, (True, True, True)),    # 778 x 425 on it: 50.1 %, the sufficient form's least
+    (1500, 2100, (True, True, False)),   # 1100 x 300: exactly 50 %, passes, not sufficient
+    (1500, 2101, (False, False, False)), # 1100 x 299: 49.8 %
+    (2451, 1400, (False, False, False)), # 549 x 600: 49.9 %
+    (2223, 1400, (True, True, False)),   # 777 x 600: 70.6 %, sufficient asks 778 along x
+])
+def test_rug_forms_around_the_share(x, y, expect) -> None:
+    # the audit passes wherever the sufficient form holds, and the necessary form holds
+    # wherever the audit passes (shares by hand, rug.under 50 %, common practice)
+    placed = {"rug": Placement(1000, 1000, 0, "r"), "coffee": Placement(x, y, 0, "r")}
+    ok, nec, suf = _forms(placed, [("rug", "rug"), ("coffee", "coffee-table")])
+    assert (ok, nec, suf) == expect
+    assert (not suf or ok) and (not ok or nec)
+
+
+def test_rug_forms_aim_at_the_audits_centre_piece() -> None:
+    # a dining table wholly on a 3000 x 2000 rug does not count while a coffee table stands
+    # in the room off it: the audit measures the coffee table first (and so does each form)
+    placed = {"rug": Placement(1000, 1000, 0, "r"), "table": Placement(1200, 2000, 0, "r"),
+              "coffee": Placement(3500, 4000, 0, "r")}
+    pieces = [("rug", "rug-large"), ("table", "dining-table-4"), ("coffee", "coffee-table")]
+    assert _forms(placed, pieces) == (False, False, False)
+    placed["coffee"] = Placement(2800, 2000, 0, "r")  # wholly on the rug
+    assert _forms(placed, pieces) == (True, True, True)
