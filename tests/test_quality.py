@@ -13,7 +13,7 @@ import pytest
 
 from roomfit.audit.check import WALL_SHARE, audit
 from roomfit.audit.quality import QUALITY_RULES, GroupCheck, Kind, quality, quality_lines
-from roomfit.plan.data import Piece, Placement, Plan, Room, Window
+from roomfit.plan.data import Fixture, Piece, Placement, Plan, Room, Window
 from roomfit.rules.groups import load_group_params
 from roomfit.rules.sets import rules_for
 
@@ -24,8 +24,9 @@ def _piece(pid: str, type_: str, x: int, y: int, rot: int = 0, **kw: object) -> 
     return Piece(pid, type_, ("r",), placement=Placement(x, y, rot, "r"), **kw)  # type: ignore[arg-type]
 
 
-def _measure(*pieces: Piece, windows: tuple[Window, ...] = ()) -> list[GroupCheck]:
-    plan = Plan("q", (ROOM,), windows=windows, furniture=pieces)
+def _measure(*pieces: Piece, windows: tuple[Window, ...] = (),
+             fixtures: tuple[Fixture, ...] = ()) -> list[GroupCheck]:
+    plan = Plan("q", (ROOM,), windows=windows, fixtures=fixtures, furniture=pieces)
     return list(quality(plan, rules_for(plan)))
 
 
@@ -189,6 +190,17 @@ def test_free_depth_ignores_pieces_that_only_touch_a_corner() -> None:
     table = _piece("t", "dining-table-4", 2000, 1500)       # south edge y = 1500, x 2000..3220
     sofa = _piece("sofa", "sofa-3", 3220, 610)               # corner at (3220, 1500)
     south = next(c for c in _measure(table, sofa) if c.rule == "group.dining"
+                 and "south" in c.label)
+    assert south.measured == 1500
+
+
+def test_free_depth_ignores_an_l_shaped_fitting_that_only_touches_a_corner() -> None:
+    # a kitchen run in an L: its long arm lies 1500 mm below the table's south edge, its
+    # short arm ends level with that edge at the table's corner (touching it at one point)
+    table = _piece("t", "dining-table-4", 2000, 2100)       # south edge y = 2100, x 2000..3220
+    run = Fixture("k", "r", "kitchen_run", "Kitchen run", ((2000, 0), (3820, 0), (3820, 2100),
+                                                           (3220, 2100), (3220, 600), (2000, 600)), 900)
+    south = next(c for c in _measure(table, fixtures=(run,)) if c.rule == "group.dining"
                  and "south" in c.label)
     assert south.measured == 1500
 

@@ -17,7 +17,7 @@ from dataclasses import dataclass
 from enum import StrEnum
 from importlib import resources
 
-from shapely import LineString, Point, Polygon, box
+from shapely import LineString, Point, Polygon, box, get_parts
 from shapely.geometry.base import BaseGeometry
 
 from roomfit.audit.geometry import (
@@ -290,6 +290,8 @@ def free_depth(ctx: Ctx, pid: str, side: str, inset: float = 0) -> float:
     blocks: list[BaseGeometry] = [band.difference(room)] if room is not None else []
     blocks += [fixture_polygon(f) for f in ctx.plan.fixtures]
     blocks += [q.shape for qid, q in ctx.placed.items() if qid != pid and not lies_flat(q.spec)]
-    hits = [h for h in (b.intersection(band) for b in blocks) if h.area >= 1.0]  # not touches
+    # only the parts of a block that cover floor in the band: an L-shaped fitting may
+    # overlap the band far off and touch the side at one corner, which blocks nothing
+    hits = [h for b in blocks for h in get_parts(b.intersection(band)) if h.area >= 1.0]
     return min((float(seg.distance(h)) for h in hits), default=float(_LOOK))
 
