@@ -255,15 +255,16 @@ def _cmd_solve(args: argparse.Namespace) -> int:
           f"{st.audits} audits, {st.cuts} layouts cut by the audit)")
     words = describe(result, options.time_limit)
     if not result.candidates:
+        written = _finish_run(run, args, rules, result.status)
         print(words.headline)
         for line in words.details:
             print(f"  {line}")
-        _finish_run(run, args, rules, result.status)
+        print(written)
         print(CAUTION)
         return EXIT_FAIL if result.status == Status.IMPOSSIBLE else EXIT_TIMEOUT
     stem = Path(args.plan).stem
     chosen = replace(plan, rules=RuleChoice(rules.id, plan.rules.overrides))
-    print(f"{'candidate':>9}  {'objective':>9}  {'optimal / gap':>13}  {'walking':>10}  checker  files")
+    rows = [f"{'candidate':>9}  {'objective':>9}  {'optimal / gap':>13}  {'walking':>10}  checker  files"]
     for c in result.candidates:
         furnished = chosen.with_layout(c.layout)
         files = [str(run.add(f"{stem}-{c.rank + 1}.toml", dumps_plan(furnished)))]
@@ -276,14 +277,16 @@ def _cmd_solve(args: argparse.Namespace) -> int:
         check = (f"pass {ok}/{len(verdict.findings)}" if verdict.passed else
                  f"pass {ok}/{len(verdict.findings)} + building" if result.building else "FAIL")
         walking = f"{routes.walking_m_per_day:.0f} m/day"
-        print(f"{c.rank + 1:>9}  {c.objective:>9g}  {gap:>13}  {walking:>10}  {check:<7}  "
-              f"{', '.join(files)}")
+        rows.append(f"{c.rank + 1:>9}  {c.objective:>9g}  {gap:>13}  {walking:>10}  {check:<7}  "
+                    f"{', '.join(files)}")
+    written = _finish_run(run, args, rules, result.status)  # before printing: a reader that
+    print("\n".join(rows))                                    # goes away loses no file
     _print_ideas(plan, rules, result.candidates, result.possible)
     if result.building:
         print(words.headline)
     for line in words.details:
         print(line)
-    _finish_run(run, args, rules, result.status)
+    print(written)
     print(CAUTION)
     return EXIT_OK if result.compliant else EXIT_FAIL
 
@@ -297,9 +300,10 @@ def _run_folder(args: argparse.Namespace) -> RunFolder:
     return RunFolder(args.output or f"{Path(args.plan).stem}-layouts", args.plan)
 
 
-def _finish_run(run: RunFolder, args: argparse.Namespace, rules: RuleSet, outcome: str) -> None:
+def _finish_run(run: RunFolder, args: argparse.Namespace, rules: RuleSet, outcome: str) -> str:
     """Swap the run's files in with a manifest saying what made them (the plan's hash, rule
-    set, seed, limits, tool version), so a folder never mixes two runs."""
+    set, seed, limits, tool version), so a folder never mixes two runs; returns the line
+    that says where they are."""
     import hashlib
     from pathlib import Path
 
@@ -313,7 +317,7 @@ def _finish_run(run: RunFolder, args: argparse.Namespace, rules: RuleSet, outcom
         "seed": args.seed, "limits": {"time_limit_s": args.time_limit, "candidates":
                                       args.candidates, "grid_mm": args.grid},
         "outcome": outcome})
-    print(f"run written to {folder}/ ({len(run.files)} files and manifest.json)")
+    return f"run written to {folder}/ ({len(run.files)} files and manifest.json)"
 
 
 def _print_ideas(plan: Plan, rules: RuleSet, candidates: Sequence, possible: Sequence = ()) -> None:

@@ -1,7 +1,10 @@
-"""The command-line shell: arguments it refuses before any work, and its version."""
+"""The command-line shell: arguments it refuses before any work, its version, a closed pipe."""
 
 from __future__ import annotations
 
+import shlex
+import subprocess
+import sys
 from importlib.metadata import version
 from pathlib import Path
 
@@ -10,6 +13,7 @@ import pytest
 from roomfit.cli import main
 
 PLAN = Path(__file__).parent / "plans_unseen" / "tiny-bed.toml"
+PLANS = Path(__file__).parent.parent / "plans"
 
 
 @pytest.mark.parametrize("limit", ["nan", "inf", "-inf", "0", "-1"])
@@ -58,3 +62,15 @@ def test_timeout_never_claims_more_time_will_not_help(elapsed: float, tmp_path: 
     out = capsys.readouterr().out
     assert "NOT proven impossible" in out and "will not help" not in out
     assert [p.name for p in tmp_path.iterdir()] == ["manifest.json"]  # the run, no layouts
+
+
+def test_a_reader_that_goes_away_loses_no_file_of_the_run(tmp_path: Path) -> None:
+    # `roomfit solve ... | head -1` with unbuffered output: every line after the first meets
+    # a closed pipe; the run folder must be complete all the same, and no traceback shown
+    out = tmp_path / "run"
+    cmd = (f"{shlex.quote(sys.executable)} -u -m roomfit solve {shlex.quote(str(PLANS / 'studio.toml'))} "
+           f"--candidates 1 --time-limit 20 -o {shlex.quote(str(out))} 2>{shlex.quote(str(tmp_path / 'err'))}"
+           " | head -1")
+    subprocess.run(cmd, shell=True, check=True, stdout=subprocess.DEVNULL)
+    assert (out / "manifest.json").is_file()
+    assert "Traceback" not in (tmp_path / "err").read_text()

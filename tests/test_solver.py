@@ -470,14 +470,14 @@ def test_nightstand_touches_the_bed_on_the_head_half_of_a_long_side() -> None:
 
 
 def test_candidates_are_ranked_by_group_rules_then_the_route_scorer() -> None:
-    from roomfit.audit.quality import group_failures
+    from roomfit.audit.quality import group_cost
     from roomfit.audit.routes import score_routes
 
     for name in ("two-bed.toml", "ground-floor-wheelchair.toml"):
         plan, rules = _rules(PLANS / name, None)
         result = _solved(str(PLANS / name), None)
         assert len(result.candidates) >= 2
-        keys = [(group_failures(plan.with_layout(c.layout), rules),
+        keys = [(group_cost(plan.with_layout(c.layout), rules),
                  score_routes(plan.with_layout(c.layout), rules).rank_key)
                 for c in result.candidates]
         assert keys == sorted(keys)

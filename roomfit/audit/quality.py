@@ -39,6 +39,7 @@ from collections.abc import Iterable
 from roomfit.audit.group_measures import GroupCheck, Kind, context
 from roomfit.audit.group_rules import RULES
 from roomfit.plan.data import Plan
+from roomfit.rules.groups import rule_weight
 from roomfit.rules.sets import RuleSet
 
 __all__ = [
@@ -47,6 +48,7 @@ __all__ = [
     "QUALITY_RULES",
     "quality",
     "group_failures",
+    "group_cost",
     "group_summary",
     "quality_record",
     "quality_lines",
@@ -73,6 +75,13 @@ def quality(plan: Plan, rules: RuleSet) -> tuple[GroupCheck, ...]:
 def group_failures(plan: Plan, rules: RuleSet) -> int:
     """How many functional-group rules (not preferences) the arrangement misses."""
     return sum(not c.ok for c in quality(plan, rules) if c.kind == Kind.GROUP)
+
+
+def group_cost(plan: Plan, rules: RuleSet) -> int:
+    """The functional-group rules the arrangement misses, each by its weight
+    (:func:`roomfit.rules.groups.rule_weight`: a miss that leaves the group usable weighs
+    less): how candidates are ranked first."""
+    return sum(rule_weight(c.rule) for c in quality(plan, rules) if c.kind == Kind.GROUP and not c.ok)
 
 
 def group_summary(plan: Plan, rules: RuleSet) -> dict[str, object]:

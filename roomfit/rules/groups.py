@@ -22,7 +22,7 @@ from roomfit.errors import Problem, RuleError
 from roomfit.plan.units import MM_PER
 
 __all__ = ["GroupParam", "PARAM_UNITS", "load_group_params", "group_param_problems", "param",
-           "solver_weight"]
+           "rule_weight"]
 
 #: Units a group value may use: lengths, degrees, and shares between 0 and 1.
 PARAM_UNITS = ("mm", "in", "deg", "ratio")
@@ -79,9 +79,14 @@ def _file() -> dict:
     return tomllib.loads(path.read_text(encoding="utf-8"))
 
 
-def solver_weight() -> int:
-    """Weight of an unmet group rule in the placement model (``[solver].weight``)."""
-    return int(_file()["solver"]["weight"])
+def rule_weight(rule: str) -> int:
+    """Weight of an unmet group rule (an audit rule id such as ``group.view``) in the
+    placement model and in the ranking of candidates: ``[solver].weight``, times
+    ``comfort_share`` for the rules listed in ``comfort`` (a miss that leaves the group
+    usable)."""
+    solver = _file()["solver"]
+    share = float(solver["comfort_share"]) if rule in solver["comfort"] else 1.0
+    return round(int(solver["weight"]) * share)
 
 
 @functools.cache

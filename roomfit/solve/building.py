@@ -26,7 +26,7 @@ from roomfit.rules.sets import RuleSet
 if TYPE_CHECKING:
     from roomfit.audit.check import Audit, Finding
 
-__all__ = ["BuildingFinding", "building_findings", "excused", "key"]
+__all__ = ["BuildingFinding", "building_findings", "excused", "key", "no_turning"]
 
 #: Shifts (mm) along a door's wall tried for a door whose approach floor the walls cut short.
 _SHIFTS = tuple(s * k for k in range(1, 11) for s in (100, -100))
@@ -140,3 +140,10 @@ def _wall_axis(plan: Plan, door: Door) -> str:
 
     ux, _ = wall_direction(plan.room(door.rooms[0]).outline, door.at)
     return "x" if abs(ux) > 0.5 else "y"
+
+
+def no_turning(building: tuple[BuildingFinding, ...]) -> frozenset[str]:
+    """Rooms whose bare floor cannot hold a turning space (a building finding): the search
+    furnishes them without one."""
+    return frozenset(b.finding.room for b in building
+                     if b.finding.rule == "turning.space" and b.finding.room)

@@ -22,7 +22,7 @@ from roomfit.plan.data import Placement, Plan, Trip
 from roomfit.rules.catalog import PieceSpec
 from roomfit.rules.sets import RuleSet
 from roomfit.solve.bound import lower_bound
-from roomfit.solve.building import BuildingFinding, key
+from roomfit.solve.building import BuildingFinding, key, no_turning
 from roomfit.solve.construct import FROM_PIECES, construct
 from roomfit.solve.cuts import SoundCut, sound_cut
 from roomfit.solve.explain import Explanation
@@ -299,9 +299,7 @@ class GroupSearch:
             self.hinted = True
 
     def _no_turning(self) -> frozenset[str]:
-        """Rooms whose bare floor cannot hold a turning space (building findings)."""
-        return frozenset(b.finding.room for b in self.building
-                         if b.finding.rule == "turning.space" and b.finding.room)
+        return no_turning(self.building)
 
     def prove_bound(self, end: float) -> None:
         """Prove a lower bound of the group's objective with pieces apart

@@ -3,10 +3,11 @@ arrange pieces the way the layout-quality audit (``roomfit.audit.quality``) meas
 
 The model's terms (``roomfit.solve.terms``) build one literal per relation (seat facing the TV,
 coffee table in front of the seat, nightstand beside the bed head) and a penalty literal for
-a bed head under a window; this module weighs each unmet group rule by the group weight of
+a bed head under a window; this module weighs each unmet group rule by its weight in
 ``data/groups.toml`` (far above every other preference, so any arrangement that meets a
-group rule the room allows beats one that does not), and adds what the relations alone do
-not say:
+group rule the room allows beats one that does not; a rule whose miss leaves the group
+usable, such as a bed head under a window, at half of it, so where a room cannot have both
+the one that makes a group work wins), and adds what the relations alone do not say:
 
 - a nightstand stands on a side the bed is used from (:func:`roomfit.audit.group_measures.used_long_sides`);
 - seats of a conversation group stand within speaking distance of another seat (L1 between
@@ -33,7 +34,7 @@ from roomfit.audit.group_measures import used_long_sides
 from roomfit.audit.group_rules import RUG_CENTRES
 from roomfit.audit.ideas import is_main
 from roomfit.plan.data import Placement, Plan
-from roomfit.rules.groups import param, solver_weight
+from roomfit.rules.groups import param, rule_weight
 
 if TYPE_CHECKING:
     from roomfit.solve.vars import PieceVars
@@ -42,9 +43,14 @@ __all__ = ["unmet_terms", "relation_group_terms", "conversation_terms", "rug_ove
            "rug_literal", "rug_terms", "main_differs", "doubled_mid", "dot"]
 
 
-def unmet_terms(unmet: cp_model.LinearExprT) -> list[cp_model.LinearExprT]:
-    """The group weight on an expression that is 1 when a group rule is not met."""
-    return [solver_weight() * unmet]
+def unmet_terms(unmet: cp_model.LinearExprT, rule: str) -> list[cp_model.LinearExprT]:
+    """The weight of the group rule ``rule`` (an audit rule id,
+    :func:`roomfit.rules.groups.rule_weight`) on an expression that is 1 when it is not met."""
+    return [rule_weight(rule) * unmet]
+
+
+#: The audit's rule of each catalogue relation.
+_RELATION_RULE = {"facing": "group.view", "in_front": "group.reach", "beside_head": "group.bedside"}
 
 
 def _centre2(pv: PieceVars) -> tuple[cp_model.LinearExpr, cp_model.LinearExpr]:
@@ -94,9 +100,9 @@ def relation_group_terms(m: cp_model.CpModel, pv: PieceVars, target: PieceVars, 
     """Group terms of one catalogue relation whose literal ``met`` the model built: the
     group weight when it is not met, and for a nightstand the same weight when it is not on
     a side the bed is used from."""
-    terms = unmet_terms(1 - met)
+    terms = unmet_terms(1 - met, _RELATION_RULE[relation])
     if relation == "beside_head":
-        terms += unmet_terms(1 - _on_used_side(m, pv, target))
+        terms += unmet_terms(1 - _on_used_side(m, pv, target), "group.bedside")
     return terms
 
 
@@ -139,7 +145,7 @@ def conversation_terms(m: cp_model.CpModel, pieces: list[PieceVars]) -> list[cp_
         for i in range(len(seats)):
             near = m.new_bool_var("")
             m.add_bool_or([lit for (a, b), lit in pair.items() if i in (a, b)]).only_enforce_if(near)
-            terms += unmet_terms(1 - near)
+            terms += unmet_terms(1 - near, "group.talk")
     return terms
 
 

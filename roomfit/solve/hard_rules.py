@@ -57,7 +57,7 @@ from roomfit.solve.rooms import RoomGeo
 from roomfit.solve.symmetry import interchangeable
 from roomfit.solve.vars import PieceVars
 
-__all__ = ["Form", "FAMILIES", "family", "rule_literal", "view_literal", "any_of", "axis_sign"]
+__all__ = ["Form", "FAMILIES", "family", "rule_literal", "require", "view_literal", "any_of", "axis_sign"]
 
 _SCALE = 10_000  # tangents as whole ten-thousandths
 
@@ -272,10 +272,36 @@ def rule_literal(m: cp_model.CpModel, pieces: list[PieceVars], geo: dict[str, Ro
     fam = family(rule)
     if me is None or fam is None:
         return None
-    twins = [me] if me.locked else [pv for pv in pieces if not pv.locked
-                                     and interchangeable(pv.spec) == interchangeable(me.spec)]
-    got = [_subject_literal(m, pieces, geo, fam, pv, form) for pv in twins]
+    got = [_subject_literal(m, pieces, geo, fam, pv, form) for pv in _twins(pieces, me)]
     return any_of(m, [lit for lit, _ in got]), all(sound for _, sound in got)
+
+
+def _twins(pieces: list[PieceVars], me: PieceVars) -> list[PieceVars]:
+    """``me`` and the movable pieces interchangeable with it (``me`` alone when locked)."""
+    return [me] if me.locked else [pv for pv in pieces if not pv.locked
+                                   and interchangeable(pv.spec) == interchangeable(me.spec)]
+
+
+def require(m: cp_model.CpModel, pieces: list[PieceVars], geo: dict[str, RoomGeo],
+            wanted: tuple[tuple[str, str], ...], form: Form) -> int:
+    """Make the rules ``wanted`` ((audit rule, subject piece) pairs) hold in ``form``,
+    all together. Interchangeable subjects count as one class: with the rule of one family
+    wanted for n pieces of a class, at least n pieces of the class meet it (the model
+    orders equal pieces, so which nightstand stands where is its own choice, but two
+    nightstands wanted by the bed are two beside it, not one). Returns how many of the
+    rules the model could state."""
+    classes: dict[tuple[str, tuple[str, ...]], set[str]] = {}
+    for rule, subject in wanted:
+        me = next((pv for pv in pieces if pv.spec.id == subject), None)
+        fam = family(rule)
+        if me is not None and fam is not None:
+            ids = tuple(pv.spec.id for pv in _twins(pieces, me))
+            classes.setdefault((fam, ids), set()).add(subject)
+    by_id = {pv.spec.id: pv for pv in pieces}
+    for (fam, ids), subjects in classes.items():
+        lits = [_subject_literal(m, pieces, geo, fam, by_id[i], form)[0] for i in ids]
+        m.add(sum(lits) >= min(len(subjects), len(lits)))
+    return sum(len(s) for s in classes.values())
 
 
 def _subject_literal(m: cp_model.CpModel, pieces: list[PieceVars], geo: dict[str, RoomGeo],

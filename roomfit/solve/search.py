@@ -6,8 +6,8 @@ every layout CP-SAT returns is audited with exact geometry (``roomfit.audit.chec
 a layout that fails is cut off and the model solved again. Only layouts that pass the audit
 are returned.
 
-Candidates are ranked by the functional-group rules they miss
-(``roomfit.audit.quality.group_failures``), then as ``roomfit compare`` ranks plans: by the
+Candidates are ranked by the functional-group rules they miss, by weight
+(``roomfit.audit.quality.group_cost``), then as ``roomfit compare`` ranks plans: by the
 route scorer's rank key (``roomfit.audit.routes.score_routes``: unreachable trips, then
 walking metres per day), the objective breaking ties.
 
@@ -37,7 +37,7 @@ from dataclasses import dataclass, replace
 from enum import StrEnum
 from typing import TYPE_CHECKING
 
-from roomfit.audit.quality import group_failures
+from roomfit.audit.quality import group_cost
 from roomfit.audit.routes import RouteScores, score_routes
 from roomfit.errors import Problem, RoomfitError
 from roomfit.plan.data import Layout, Placement, Plan
@@ -397,10 +397,10 @@ def _combine(plan: Plan, rules: RuleSet, searches: list[GroupSearch], wanted: in
         routes = score_routes(furnished, rules)
         out.append(Candidate(layout, sum(f.objective for f in picks), sum(f.bound for f in picks),
                              all(f.optimal for f in picks), len(out), verdict, routes))
-    # fewer unmet functional-group rules first (a layout a designer would sign), then ranked
+    # fewer unmet functional-group rules first, by weight (a layout a designer would sign), then ranked
     # as `roomfit compare` ranks plans: fewer unreachable trips, then fewer walking metres
     # per day; the objective breaks ties
-    out.sort(key=lambda c: (group_failures(plan.with_layout(c.layout), rules), c.route_key,
+    out.sort(key=lambda c: (group_cost(plan.with_layout(c.layout), rules), c.route_key,
                             c.objective))
     return [replace(c, rank=i) for i, c in enumerate(out)]
 

@@ -217,7 +217,7 @@ def add_objective(m: cp_model.CpModel, pieces: list[PieceVars], geo: dict[str, R
                         m.add(along + span <= lo).only_enforce_if(left)
                         m.add(along >= hi).only_enforce_if(right)
                         m.add_bool_or([left, right, pen, wl_lit.negated()])
-                        terms += [int(w["bed_under_window"]) * pen, *unmet_terms(pen)]
+                        terms += [int(w["bed_under_window"]) * pen, *unmet_terms(pen, "group.bed_window")]
         if pv.spec.category == "dining_table":
             runs = [(sum(px for px, _ in f.zone or f.outline) / len(f.zone or f.outline),
                      sum(py for _, py in f.zone or f.outline) / len(f.zone or f.outline))
