@@ -6,19 +6,22 @@ from __future__ import annotations
 
 import math
 import time
+from pathlib import Path
 
 import pytest
 from ortools.sat.python import cp_model
 
 from roomfit.audit.check import audit
-from roomfit.audit.quality import quality
+from roomfit.audit.quality import Kind, quality
 from roomfit.plan.data import Door, Leaf, Piece, Placement, Plan, Room
+from roomfit.plan.read import read_plan
 from roomfit.rules.catalog import resolve_pieces
 from roomfit.rules.sets import rules_for
-from roomfit.solve.hard_rules import Form, rule_literal
+from roomfit.solve.hard_rules import Form, require, rule_literal
 from roomfit.solve.model import build_model
 from roomfit.solve.possible import Reach, settle
 from roomfit.solve.search import SolveOptions, components, solve
+from roomfit.solve.solution import decode
 
 
 def _room(width: int, depth: int, pieces: list[Piece]) -> Plan:
@@ -134,3 +137,51 @@ def test_a_rearranged_first_candidate_is_judged_again(monkeypatch: pytest.Monkey
     assert first.layout == moved and not first.optimal
     assert first.audit.passed == audit(plan.with_layout(moved), rules, widths=True).passed
     assert first.routes is not None
+
+
+def test_two_nightstands_wanted_by_the_bed_are_two_beside_it() -> None:
+    # with the bedside rule wanted for both of two equal nightstands, both stand beside the
+    # head half of the bed (the audit's group.bedside, measured with shapely), not one
+    pieces = [Piece("bed", "bed-double-160", ("r",)), Piece("n1", "nightstand", ("r",)),
+              Piece("n2", "nightstand", ("r",))]
+    plan = _room(4200, 4200, pieces)
+    rules = rules_for(plan)
+    specs = list(resolve_pieces(plan, rules))
+    built = build_model(plan, rules, specs, ["r"], strengthen=False, objective=False)
+    wanted = (("group.bedside", "n1"), ("group.bedside", "n2"))
+    assert require(built.model, built.pieces, built.rooms, wanted, Form.SUFFICIENT) == 2
+    solver = cp_model.CpSolver()
+    solver.parameters.num_workers = 1
+    assert solver.solve(built.model) in (cp_model.OPTIMAL, cp_model.FEASIBLE)
+    done = plan.with_layout(tuple(decode(built, solver).items()))
+    checks = [c for c in quality(done, rules) if c.rule == "group.bedside"]
+    assert len(checks) == 2 and all(c.ok for c in checks), [c.shown for c in checks]
+
+
+# A first candidate of the one-bed sample found by an earlier search: it passes the audit,
+# with its bed's head under the bedroom window (the only group rule it misses).
+_ONE_BED = {"bed": (1328, 4500, 180, "bedroom"), "ns-left": (868, 6145, 180, "bedroom"),
+            "ns-right": (3028, 6145, 180, "bedroom"), "wardrobe": (1128, 2800, 0, "bedroom"),
+            "sofa": (6596, 3691, 90, "living"), "tv": (3800, 4101, 270, "living"),
+            "table": (3808, 2408, 0, "living"), "desk": (8400, 4100, 90, "living"),
+            "bookcase": (3800, 5750, 270, "living"), "armchair": (4972, 5750, 180, "living")}
+
+
+def test_the_one_bed_sample_is_rearranged_to_meet_every_group_rule() -> None:
+    # the bedroom allows the head on its east wall with both nightstands beside it; the
+    # search with every group rule hard at once finds it, where one rule at a time had
+    # traded the window for a nightstand
+    plan = read_plan(Path(__file__).parent.parent / "plans" / "one-bed.toml")
+    plan = plan.with_layout(tuple((pid, Placement(*at)) for pid, at in _ONE_BED.items()))
+    rules = rules_for(plan)
+    assert audit(plan, rules, widths=True).passed
+    assert [c.rule for c in quality(plan, rules) if c.kind == Kind.GROUP and not c.ok] == [
+        "group.bed_window"]
+    specs = resolve_pieces(plan, rules)
+    better, verdicts = settle(plan, rules, components(plan, specs), plan.layout, [],
+                              SolveOptions(seed=0), time.monotonic() + 40)
+    assert better is not None, [v.text for v in verdicts]
+    done = plan.with_layout(better)
+    assert audit(done, rules, widths=True).passed
+    assert all(c.ok for c in quality(done, rules) if c.kind == Kind.GROUP)
+    assert [v.reach for v in verdicts] == [Reach.MET]

@@ -12,9 +12,9 @@ import math
 import pytest
 
 from roomfit.audit.check import WALL_SHARE, audit
-from roomfit.audit.quality import QUALITY_RULES, GroupCheck, Kind, quality, quality_lines
+from roomfit.audit.quality import QUALITY_RULES, GroupCheck, Kind, group_cost, quality, quality_lines
 from roomfit.plan.data import Fixture, Piece, Placement, Plan, Room, Window
-from roomfit.rules.groups import load_group_params
+from roomfit.rules.groups import load_group_params, rule_weight
 from roomfit.rules.sets import rules_for
 
 ROOM = Room("r", "Living", "living", ((0, 0), (6000, 0), (6000, 5000), (0, 5000)))
@@ -264,6 +264,16 @@ def test_every_rule_is_listed_and_values_are_sourced() -> None:
         assert p.source.strip() and p.status in ("verified", "memory", "common-practice")
     # the clearance audit's "against a wall" pass mark is the group data's one value
     assert WALL_SHARE == load_group_params()["wall.share"].value
+
+
+def test_a_miss_that_leaves_the_group_usable_weighs_less() -> None:
+    # a bed head under a window (comfort) against a sofa turned from the TV (the viewing
+    # group no longer works): candidates are ranked by group_cost, the lighter miss first
+    assert rule_weight("group.bed_window") < rule_weight("group.view") == rule_weight("group.bedside")
+    away = Plan("q", (ROOM,), furniture=(TV, _piece("sofa", "sofa-3", 1933, 2400, 0)))
+    missed = [c.rule for c in quality(away, rules_for(away)) if c.kind == Kind.GROUP and not c.ok]
+    assert "group.view_angle" in missed
+    assert group_cost(away, rules_for(away)) == sum(rule_weight(r) for r in missed)
 
 
 def test_preferences_are_marked_as_such() -> None:
