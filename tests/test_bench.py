@@ -165,13 +165,15 @@ def test_group_rules_summed_by_hand() -> None:
 
     good = {"passed": True, "group_met": 4, "group_total": 4}
     half = {"passed": True, "group_met": 2, "group_total": 4}
+    traded = [{"label": "bed", "rules": ["group.bed_window"], "reach": "possible"},
+              {"label": "sofa", "rules": ["group.view"], "reach": "impossible"}]
     rows = [_row("a", ("generated",), {"arrangements": [good, half]}, {"arrangement": half}),
-            _row("b", ("generated",), {"arrangements": [half]},
+            _row("b", ("generated",), {"arrangements": [half], "possible": traded},
                  {"arrangement": {**good, "passed": False}})]  # an invalid one does not count
     g = group_rules_summary(rows)
     # solver first candidates: 4 + 2 of 8 checks; baseline: only a's valid 2 of 4
     assert g["solver"] == {"arrangements": 2, "checks_met": 6, "checks": 8, "share": 0.75,
-                           "all_met": 1}
+                           "all_met": 1, "misses": {"impossible": 1, "possible": 1}}
     assert g["baseline"] == {"arrangements": 1, "checks_met": 2, "checks": 4, "share": 0.5,
                              "all_met": 0}
 

@@ -103,6 +103,9 @@ def _run_solver(inst: Instance, rules: RuleSet, config: BenchConfig, say: Callab
         arrangements = [time_arrangement(inst.plan, rules, c.layout) for c in res.candidates]
         row["arrangements"] = arrangements
         row["pass_rate"] = sum(a["passed"] for a in arrangements) / len(arrangements)
+        # what the solve said of each group rule its first candidate misses
+        row["possible"] = [{"label": p.label, "rules": list(p.rules), "reach": str(p.reach)}
+                           for p in res.possible]
     first = row["time_first_valid_s"]
     say(f"solver {res.status}: {len(res.candidates)} candidate(s) in {elapsed:.2f} s"
         + (f", first valid after {first:.2f} s" if first is not None else "")

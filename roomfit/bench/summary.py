@@ -37,6 +37,9 @@ def group_rules_summary(rows: list[dict[str, Any]]) -> dict[str, Any]:
         out[who] = {"arrangements": len(arr), "checks_met": met, "checks": total,
                     "share": round(met / total, 3) if total else None,
                     "all_met": sum(a["group_met"] == a["group_total"] for a in arr)}
+    verdicts = [p["reach"] for r in rows for p in r.get("solver", {}).get("possible", [])]
+    if "solver" in out:
+        out["solver"]["misses"] = {reach: verdicts.count(reach) for reach in sorted(set(verdicts))}
     return out
 
 
@@ -44,6 +47,8 @@ def group_rules_line(g: dict[str, Any]) -> str:
     """The solver's and the baseline's functional-group satisfaction side by side."""
     parts = [f"{who} {v['checks_met']} of {v['checks']} checks ({fmt_s(v['share'])}), every "
              f"group rule met in {v['all_met']} of {v['arrangements']} arrangements"
+             + (" (its misses, as the solve settled them: " + ", ".join(
+                 f"{n} {reach}" for reach, n in v["misses"].items()) + ")" if v.get("misses") else "")
              for who, v in g.items()]
     return "Functional-group rules met (valid arrangements; solver: first candidate): " + (
         "; ".join(parts) or "not measured")
