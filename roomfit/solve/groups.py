@@ -221,7 +221,7 @@ def rug_terms(m: cp_model.CpModel, pieces: list[PieceVars]) -> list[cp_model.Lin
             continue
         ok = rug_literal(m, rug, pieces)
         if ok is not None:
-            terms += unmet_terms(1 - ok)
+            terms += unmet_terms(1 - ok, "group.rug")
     return terms
 
 
