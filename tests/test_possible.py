@@ -32,7 +32,8 @@ def _room(width: int, depth: int, pieces: list[Piece]) -> Plan:
 
 def _view_ok(plan: Plan) -> bool:
     rules = rules_for(plan)
-    return all(c.ok for c in quality(plan, rules) if c.rule in ("group.view", "group.view_angle"))
+    return all(c.ok for c in quality(plan, rules)
+               if c.rule in ("group.view", "group.view_angle", "group.view_clear"))
 
 
 def _form_holds(plan: Plan, form: Form) -> bool:
@@ -76,6 +77,22 @@ def test_view_forms_bracket_the_audit(gap: int, across: int) -> None:
         assert _form_holds(plan, Form.NECESSARY)
     if _form_holds(plan, Form.SUFFICIENT):
         assert ok
+
+
+@pytest.mark.parametrize(("type_", "x", "clear"), [
+    ("dining-table-4", 1000, False), ("coffee-table", 1100, True), ("dining-table-4", 3500, True)])
+def test_the_floor_between_seat_and_screen_is_kept_clear(type_: str, x: int, clear: bool) -> None:
+    # sofa facing north, TV 2400 mm beyond; a third piece between them or beside them: a
+    # dining table (740 mm high) in between is in the way, a coffee table (450 mm) is not
+    # (view.clear_height 600 mm, common practice); the sufficient form holds only where the
+    # audit passes, the necessary form wherever it does
+    pieces = [Piece("sofa", "sofa-3", ("r",), placement=Placement(600, 500, 0, "r"), locked=True),
+              Piece("tv", "tv-unit", ("r",), placement=Placement(867, 3790, 180, "r"), locked=True),
+              Piece("x", type_, ("r",), placement=Placement(x, 1900, 90, "r"), locked=True)]
+    plan = _room(6000, 6000, pieces)
+    assert _view_ok(plan) is clear
+    assert _form_holds(plan, Form.SUFFICIENT) is clear
+    assert _form_holds(plan, Form.NECESSARY)
 
 
 def test_a_room_too_small_for_the_viewing_range_is_proven_impossible() -> None:
@@ -159,7 +176,8 @@ def test_two_nightstands_wanted_by_the_bed_are_two_beside_it() -> None:
 
 
 # A first candidate of the one-bed sample found by an earlier search: it passes the audit,
-# with its bed's head under the bedroom window (the only group rule it misses).
+# with its bed's head under the bedroom window and the armchair between the sofa and the TV
+# (the group rules it misses).
 _ONE_BED = {"bed": (1328, 4500, 180, "bedroom"), "ns-left": (868, 6145, 180, "bedroom"),
             "ns-right": (3028, 6145, 180, "bedroom"), "wardrobe": (1128, 2800, 0, "bedroom"),
             "sofa": (6596, 3691, 90, "living"), "tv": (3800, 4101, 270, "living"),
@@ -175,8 +193,8 @@ def test_the_one_bed_sample_is_rearranged_to_meet_every_group_rule() -> None:
     plan = plan.with_layout(tuple((pid, Placement(*at)) for pid, at in _ONE_BED.items()))
     rules = rules_for(plan)
     assert audit(plan, rules, widths=True).passed
-    assert [c.rule for c in quality(plan, rules) if c.kind == Kind.GROUP and not c.ok] == [
-        "group.bed_window"]
+    assert {c.rule for c in quality(plan, rules) if c.kind == Kind.GROUP and not c.ok} == {
+        "group.bed_window", "group.view_clear"}
     specs = resolve_pieces(plan, rules)
     better, verdicts = settle(plan, rules, components(plan, specs), plan.layout, [],
                               SolveOptions(seed=0), time.monotonic() + 40)
@@ -184,4 +202,4 @@ def test_the_one_bed_sample_is_rearranged_to_meet_every_group_rule() -> None:
     done = plan.with_layout(better)
     assert audit(done, rules, widths=True).passed
     assert all(c.ok for c in quality(done, rules) if c.kind == Kind.GROUP)
-    assert [v.reach for v in verdicts] == [Reach.MET]
+    assert [v.reach for v in verdicts] == [Reach.MET, Reach.MET]

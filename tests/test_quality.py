@@ -164,6 +164,21 @@ def test_desk_height_leaves_knee_space(height: int, ok: bool) -> None:
     assert c.ok is ok and c.measured == height
 
 
+@pytest.mark.parametrize(("height", "ok"), [(600, True), (601, False)])
+def test_nothing_tall_between_seat_and_screen(height: int, ok: bool) -> None:
+    # view.clear_height 600 mm (common practice: a coffee table passes, a dining table does
+    # not); a low table of ``height`` between the sofa's front (y 2400) and the TV's (y 400)
+    low = _piece("ct", "coffee-table", 2450, 1200, height=height)
+    c = _one(_measure(TV, _sofa_at(2000), low), "group.view_clear")
+    assert c.ok is ok and c.measured == (0 if ok else height)
+    assert ok or "coffee table in the way" in c.label
+
+
+def test_a_tall_piece_beside_the_line_of_sight_is_not_in_the_way() -> None:
+    shelf = _piece("b", "bookcase", 100, 1500, 90)  # 1900 mm high, west of both pieces
+    assert _one(_measure(TV, _sofa_at(2000), shelf), "group.view_clear").ok
+
+
 # --------------------------------------------------------------------------- conversation, rug
 
 

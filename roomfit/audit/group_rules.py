@@ -66,7 +66,25 @@ def _view(ctx: Ctx) -> list[GroupCheck]:
         out.append(group_check("group.view_angle", pair + ", off axis", off <= angle_max.value, off,
                           "deg", f"at most {angle_max.value:.0f}°", angle_max.cited,
                           (pid, sid), seat.at.room, a))
+        out.append(_view_clear(ctx, pid, sid, pair))
     return out
+
+
+def _view_clear(ctx: Ctx, pid: str, sid: str, pair: str) -> GroupCheck:
+    """``group.view_clear``: no standing piece taller than ``view.clear_height`` (a coffee
+    table is lower) on the floor between the seat's front and the screen's (the convex hull
+    of the two front edges); measured: the tallest such piece's height (0 when clear)."""
+    seat, screen = ctx.placed[pid], ctx.placed[sid]
+    limit = param("view.clear_height")
+    sight = side_segment(seat, "front").union(side_segment(screen, "front")).convex_hull
+    tall = [(q.spec.height, qid) for qid, q in ctx.in_room(seat.at.room, lambda s: not lies_flat(s))
+            if qid not in (pid, sid) and q.spec.height > limit.mm
+            and q.shape.intersection(sight).area >= 1.0]
+    height, qid = max(tall, default=(0, ""))
+    label = pair + ", line of sight" + (f" ({ctx.name(qid)} in the way)" if qid else "")
+    return group_check("group.view_clear", label, not tall, height, "mm",
+                       f"nothing above {metres(limit.mm)} between", limit.cited,
+                       (pid, sid, *([qid] if qid else [])), seat.at.room, front_mid(seat))
 
 
 def _reach(ctx: Ctx) -> list[GroupCheck]:

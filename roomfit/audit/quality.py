@@ -7,7 +7,8 @@ carries the measured value, its target and the target's source:
 
 - ``group.view``: a seat faces the screen within the viewing distance (screen diagonals,
   catalogue ``view_min``..``view_max``) and ``group.view_angle``: within ``view.off_axis``
-  degrees of the screen's axis and of the seat's;
+  degrees of the screen's axis and of the seat's; ``group.view_clear``: nothing taller
+  than ``view.clear_height`` stands between them;
 - ``group.reach``: the coffee table stands in front of its seat, the catalogue's gap from
   the seat front (:func:`reach_range`), and ``group.reach_axis``: on the seat's centre line;
 - ``group.bedside``: a nightstand touches the head half of a long side the bed is used
@@ -56,7 +57,8 @@ __all__ = [
 
 #: Every rule this module measures, with what it asks (the texts in ``docs/quality.md``).
 QUALITY_RULES = (
-    "group.view", "group.view_angle", "group.reach", "group.reach_axis", "group.bedside",
+    "group.view", "group.view_angle", "group.view_clear", "group.reach", "group.reach_axis",
+    "group.bedside",
     "group.bed_wall", "group.bed_window", "group.dining", "group.desk_chair",
     "group.desk_height", "group.talk", "group.talk_turn", "group.rug", "access.transfer", "pref.wall",
 )

@@ -71,7 +71,7 @@ class Form(StrEnum):
 
 #: The audit rules measured on one pair of pieces, taken together, by their first rule.
 FAMILIES: dict[str, tuple[str, ...]] = {
-    "group.view": ("group.view", "group.view_angle"),
+    "group.view": ("group.view", "group.view_angle", "group.view_clear"),
     "group.reach": ("group.reach", "group.reach_axis"),
     "group.bedside": ("group.bedside",),
     "group.bed_window": ("group.bed_window",),
@@ -125,7 +125,34 @@ def _turns_fully(pv: PieceVars) -> bool:
     return pv.locked or len({rot for _, rot in pv.alts}) == 4
 
 
-def _view(m: cp_model.CpModel, seat: PieceVars, screen: PieceVars, form: Form) -> cp_model.IntVar:
+def _clear_between(m: cp_model.CpModel, p: cp_model.IntVar, room: str, axis: int,
+                   band: tuple[cp_model.LinearExprT, cp_model.LinearExprT],
+                   sides: tuple[PieceVars, int, PieceVars, int], others: list[PieceVars]) -> None:
+    """When ``p`` holds: every piece of ``others`` taller than ``view.clear_height`` that
+    stands in ``room`` keeps out of the box between the two fronts (along ``axis`` the
+    ``band`` from one front line to the other; across it, the span of both pieces), which
+    holds the convex hull the audit's ``group.view_clear`` measures."""
+    limit = param("view.clear_height").mm
+    seat, rot, screen, srot = sides
+    b = 1 - axis
+    for q in others:
+        if q.spec.height <= limit or q.spec.height == 0:
+            continue
+        for (r, qrot), qlit in q.alts.items():
+            if r != room:
+                continue
+            q_hi = [_lo(q, a) + q.size(qrot)[a] for a in (0, 1)]
+            opts = [m.new_bool_var("") for _ in range(4)]
+            m.add(q_hi[axis] <= band[0]).only_enforce_if(opts[0])
+            m.add(_lo(q, axis) >= band[1]).only_enforce_if(opts[1])
+            for me, turn in ((seat, rot), (screen, srot)):
+                m.add(q_hi[b] <= _lo(me, b)).only_enforce_if(opts[2])
+                m.add(_lo(q, b) >= _lo(me, b) + me.size(turn)[b]).only_enforce_if(opts[3])
+            m.add_bool_or(opts).only_enforce_if([p, qlit])
+
+
+def _view(m: cp_model.CpModel, seat: PieceVars, screen: PieceVars, form: Form,
+          others: list[PieceVars] | None = None) -> cp_model.IntVar:
     lo, hi = view_range(seat.spec, screen.spec)
     if hi <= 0:
         return any_of(m, [])
@@ -153,14 +180,20 @@ def _view(m: cp_model.CpModel, seat: PieceVars, screen: PieceVars, form: Form) -
         m.add(gap <= a_max).only_enforce_if(p)
         m.add(_SCALE * across2 <= 2 * tan * gap).only_enforce_if(p)
         m.add(-_SCALE * across2 <= 2 * tan * gap).only_enforce_if(p)
+        if form == Form.SUFFICIENT and others:
+            band = (seat_hi, _lo(screen, axis)) if sign > 0 else (screen_hi, _lo(seat, axis))
+            _clear_between(m, p, r, axis, band, (seat, rot, screen, srot), others)
         options.append(p)
     return any_of(m, options)
 
 
-def view_literal(m: cp_model.CpModel, seat: PieceVars, screen: PieceVars) -> cp_model.IntVar:
-    """A literal that implies: ``seat`` and ``screen`` meet the audit's ``group.view`` and
-    ``group.view_angle`` (the sufficient form): the solver's ``facing`` relation."""
-    return _view(m, seat, screen, Form.SUFFICIENT)
+def view_literal(m: cp_model.CpModel, seat: PieceVars, screen: PieceVars,
+                 pieces: list[PieceVars]) -> cp_model.IntVar:
+    """A literal that implies: ``seat`` and ``screen`` meet the audit's ``group.view``,
+    ``group.view_angle`` and ``group.view_clear`` (the sufficient form; ``pieces``: every
+    piece of the model): the solver's ``facing`` relation."""
+    return _view(m, seat, screen, Form.SUFFICIENT,
+                 [pv for pv in pieces if pv is not seat and pv is not screen])
 
 
 def _reach(m: cp_model.CpModel, table: PieceVars, seat: PieceVars) -> cp_model.IntVar:
@@ -311,7 +344,8 @@ def _subject_literal(m: cp_model.CpModel, pieces: list[PieceVars], geo: dict[str
     if fam == "group.view":
         screens = [pv for pv in others if "viewing" in pv.spec.groups and pv.spec.screen]
         seats = [pv for pv in pieces if "viewing" in pv.spec.groups and pv.spec.view_max > 0]
-        lits = [_view(m, s, t, form) for t in screens for s in seats if me in (s, t)]
+        lits = [_view(m, s, t, form, [pv for pv in pieces if pv is not s and pv is not t])
+                for t in screens for s in seats if me in (s, t)]
         sound = all(_turns_fully(pv) for pv in screens + seats)
     elif fam == "group.reach":
         cats = {cat for rel, cat in me.spec.relations if rel == "in_front"}

@@ -148,9 +148,10 @@ def _beside_head(m: cp_model.CpModel, stand: PieceVars, bed: PieceVars) -> cp_mo
 
 
 def _relation_terms(m: cp_model.CpModel, pv: PieceVars, t: PieceVars, relation: str,
-                    w: dict) -> list:
+                    w: dict, pieces: list[PieceVars]) -> list:
     """Penalty terms of one relation: a fixed penalty when it is not met, plus per cm from the
-    related piece's spot (a gradient towards it)."""
+    related piece's spot (a gradient towards it); ``pieces``: every piece of the model (the
+    floor between a seat and its screen is kept clear of the tall ones)."""
     if relation == "beside_head":
         met = _beside_head(m, pv, t)
         tx, ty = _point2(t, "back", 0)
@@ -167,7 +168,7 @@ def _relation_terms(m: cp_model.CpModel, pv: PieceVars, t: PieceVars, relation: 
         lo, hi = facing_range(pv.spec, t.spec)
         if hi <= 0:
             return []
-        met = view_literal(m, pv, t)
+        met = view_literal(m, pv, t, pieces)
         tx, ty = _point2(pv, "front", (lo + hi) // 2 + t.spec.depth // 2)
         sx, sy = _centre2(t)
         weight = int(w["facing"])
@@ -194,7 +195,7 @@ def add_objective(m: cp_model.CpModel, pieces: list[PieceVars], geo: dict[str, R
             cands = [t for t in by_cat.get(target, []) if set(t.spec.rooms) & set(pv.spec.rooms)]
             if not cands or (pv.locked and cands[0].locked):
                 continue
-            terms += _relation_terms(m, pv, cands[0], relation, w)
+            terms += _relation_terms(m, pv, cands[0], relation, w, pieces)
         if pv.locked:
             continue
         # wall-loving pieces not against a wall
