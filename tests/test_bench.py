@@ -351,3 +351,22 @@ def test_found_plot_steps_up_once_per_instance_found() -> None:
     # start at 0 %, end at 2 of 3 and 1 of 3 of the plot's height (40 px top, 310 px tall)
     assert ys[0][0] == pytest.approx(350) and ys[0][-1] == pytest.approx(350 - 310 * 2 / 3, abs=0.1)
     assert ys[1][-1] == pytest.approx(350 - 310 / 3, abs=0.1)
+
+
+def test_a_building_finding_does_not_count_against_a_candidate() -> None:
+    # a generated two-room wheelchair flat whose bare floor fails a door's approach (a
+    # building finding the solve furnishes around and reports): its candidate counts as
+    # valid in the benchmark, with the finding counted apart, not as a checker failure
+    from roomfit.bench.instances import InstanceSpec, generate
+    from roomfit.bench.measure import time_arrangement
+    from roomfit.rules.sets import rules_for
+    from roomfit.solve.search import SolveOptions, solve
+
+    plan = generate(InstanceSpec(2, 12, "mixed", "wheelchair", "tight", 1))
+    rules = rules_for(plan)
+    res = solve(plan, rules, SolveOptions(candidates=1, time_limit=30, seed=0))
+    assert res.building and res.candidates
+    layout = res.candidates[0].layout
+    row = time_arrangement(plan, rules, layout, res.building)
+    assert row["passed"] and row["building_failures"] >= 1
+    assert not time_arrangement(plan, rules, layout)["passed"]
