@@ -119,7 +119,7 @@ def test_a_turned_away_sofa_is_rearranged_when_the_room_allows_it() -> None:
     rules = rules_for(plan)
     assert audit(plan, rules).passed and not _view_ok(plan)
     specs = resolve_pieces(plan, rules)
-    better, verdicts = settle(plan, rules, components(plan, specs), plan.layout, [],
+    better, verdicts = settle(plan, rules, components(plan, specs), plan.layout,
                               SolveOptions(seed=0), time.monotonic() + 30)
     assert verdicts and verdicts[0].reach == Reach.MET, [v.text for v in verdicts]
     assert better is not None
@@ -134,7 +134,7 @@ def test_a_desk_too_high_is_impossible_without_a_search() -> None:
     plan = _room(4000, 4000, [desk])
     rules = rules_for(plan)
     specs = resolve_pieces(plan, rules)
-    better, verdicts = settle(plan, rules, components(plan, specs), plan.layout, [],
+    better, verdicts = settle(plan, rules, components(plan, specs), plan.layout,
                               SolveOptions(), time.monotonic() + 5)
     assert better is None
     assert [v.reach for v in verdicts if "group.desk_height" in v.rules] == [Reach.IMPOSSIBLE]
@@ -196,10 +196,37 @@ def test_the_one_bed_sample_is_rearranged_to_meet_every_group_rule() -> None:
     assert {c.rule for c in quality(plan, rules) if c.kind == Kind.GROUP and not c.ok} == {
         "group.bed_window", "group.view_clear"}
     specs = resolve_pieces(plan, rules)
-    better, verdicts = settle(plan, rules, components(plan, specs), plan.layout, [],
+    better, verdicts = settle(plan, rules, components(plan, specs), plan.layout,
                               SolveOptions(seed=0), time.monotonic() + 40)
     assert better is not None, [v.text for v in verdicts]
     done = plan.with_layout(better)
     assert audit(done, rules, widths=True).passed
     assert all(c.ok for c in quality(done, rules) if c.kind == Kind.GROUP)
     assert [v.reach for v in verdicts] == [Reach.MET, Reach.MET]
+
+
+# A first candidate of the studio sample found by an earlier search: the bed's head on the
+# south wall (the one wall where it is neither under a window nor in the door's way), the
+# sofa on the north wall with the TV beside it, off its axis.
+_STUDIO = {"bed": (800, 2000, 0, "main"), "ns-1": (345, 2000, 0, "main"),
+           "wardrobe": (4800, 2000, 90, "main"), "sofa": (1172, 5710, 180, "main"),
+           "tv": (0, 4950, 270, "main"), "table": (2550, 4119, 90, "main")}
+
+
+def test_a_comfort_rule_is_given_up_for_a_rule_that_makes_a_group_work() -> None:
+    # in the studio the sofa can face the TV only when the bed's head is under a window:
+    # the bed head clear of a window is a comfort rule (half weight, groups.toml), so the
+    # check takes the arrangement where the sofa faces the TV and the nightstand stays
+    plan = read_plan(Path(__file__).parent.parent / "plans" / "studio.toml")
+    plan = plan.with_layout(tuple((pid, Placement(*at)) for pid, at in _STUDIO.items()))
+    rules = rules_for(plan)
+    assert audit(plan, rules, widths=True).passed and not _view_ok(plan)
+    specs = resolve_pieces(plan, rules)
+    better, verdicts = settle(plan, rules, components(plan, specs), plan.layout,
+                              SolveOptions(seed=0), time.monotonic() + 30)
+    assert better is not None, [v.text for v in verdicts]
+    done = plan.with_layout(better)
+    assert audit(done, rules, widths=True).passed and _view_ok(done)
+    missed = {c.rule for c in quality(done, rules) if c.kind == Kind.GROUP and not c.ok}
+    assert missed <= {"group.bed_window"}
+    assert "comfort rule given up" in verdicts[0].detail or not missed

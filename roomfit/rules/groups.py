@@ -22,7 +22,7 @@ from roomfit.errors import Problem, RuleError
 from roomfit.plan.units import MM_PER
 
 __all__ = ["GroupParam", "PARAM_UNITS", "load_group_params", "group_param_problems", "param",
-           "rule_weight"]
+           "rule_weight", "is_comfort"]
 
 #: Units a group value may use: lengths, degrees, and shares between 0 and 1.
 PARAM_UNITS = ("mm", "in", "deg", "ratio")
@@ -85,8 +85,14 @@ def rule_weight(rule: str) -> int:
     ``comfort_share`` for the rules listed in ``comfort`` (a miss that leaves the group
     usable)."""
     solver = _file()["solver"]
-    share = float(solver["comfort_share"]) if rule in solver["comfort"] else 1.0
+    share = float(solver["comfort_share"]) if is_comfort(rule) else 1.0
     return round(int(solver["weight"]) * share)
+
+
+def is_comfort(rule: str) -> bool:
+    """True for a group rule whose miss leaves the group usable as meant (``[solver].comfort``:
+    a bed head under a window, a rug beside its group)."""
+    return rule in _file()["solver"]["comfort"]
 
 
 @functools.cache

@@ -17,11 +17,13 @@ every group rule the first candidate misses, within a declared share of the time
    that passes the clearance rules meets the rule, "not possible in this room".
 2. **Second search.** Otherwise the verify-and-cut search of those rooms runs once more with
    the rule's *sufficient* form made hard, and with it every group rule the arrangement
-   already meets there (so the search looks for the arrangement with one more rule met).
-   An arrangement it finds replaces the rooms' part of the candidate when the
-   whole flat still passes the audit, misses fewer group rules and stays visibly different
-   from the other candidates; one that meets the rule only by missing others is reported, not
-   taken.
+   already meets there (so the search looks for the arrangement with one more rule met);
+   for a rule that makes a group work, then with only the kept rules that do too (a comfort
+   rule may be given up for it). An arrangement it finds replaces the rooms' part of the
+   candidate when the whole flat still passes the audit and misses less, by weight; one
+   that meets the rule only by missing more is reported, not taken. A rearranged candidate
+   goes first and the other candidates follow while visibly different
+   (:func:`settle_first`).
 3. Otherwise the miss is stated plainly: not proven impossible, not reached in the time.
 
 Why the rules stay soft in the main search: a rule proven possible for its rooms on its own
@@ -46,6 +48,7 @@ from roomfit.audit.quality import GroupCheck, Kind, group_cost, quality
 from roomfit.audit.routes import score_routes
 from roomfit.plan.data import Layout, Placement, Plan
 from roomfit.rules.catalog import PieceSpec, resolve_pieces
+from roomfit.rules.groups import is_comfort
 from roomfit.rules.sets import RuleSet
 from roomfit.solve.building import BuildingFinding, excused, no_turning
 from roomfit.solve.group import GroupSearch, judge, routines_of
@@ -61,14 +64,15 @@ if TYPE_CHECKING:
 __all__ = ["SHARE", "Reach", "Possibility", "settle", "settle_first", "share"]
 
 #: Share of the solve's time limit kept for settling the first candidate's missed group rules
-#: (proofs and second searches; unused when it misses none). Measured on the one-bed
-#: sample: the search with every group rule hard finds its arrangement in 1.3-1.8 s when
-#: given 4 s or more, none when given 2 s (its stages share the time).
-SHARE = 0.3
+#: (proofs and second searches; unused when it misses none). Measured: on the one-bed
+#: sample the search with every group rule hard finds its arrangement in 1.5-1.9 s from
+#: the candidate's arrangement (4.9-5.2 s from nothing); on the studio the search with the
+#: rules that make its groups work needs 1.7-2.9 s; stages share the time a search is given.
+SHARE = 0.4
 
 #: Share of that time for the search with every group rule hard at once (the rest settles
 #: the rules it left missed, one by one).
-JOINT = 2 / 3
+JOINT = 1 / 2
 
 
 class Reach(StrEnum):
@@ -113,18 +117,18 @@ def settle_first(plan: Plan, rules: RuleSet, groups: list[tuple[list[str], list[
                  candidates: list[Candidate], options: SolveOptions, clock: Clock,
                  settling: float, building: tuple[BuildingFinding, ...] = ()
                  ) -> tuple[Possibility, ...]:
-    """:func:`settle` on the first of ``candidates`` within ``settling`` s (none: no check),
-    leaving one candidate's share of the clock's audit reserve (the reserve less the
-    ``settling`` the search kept). A rearranged first candidate, judged and scored again
+    """:func:`settle` on the first of ``candidates`` with the time left but one candidate's
+    share of the clock's audit reserve (the reserve less the ``settling`` s the search kept
+    for it; more when the search ended early; no check when ``settling`` is 0). A rearranged
+    first candidate, judged and scored again
     (not proven optimal; the objective stays the search's), goes first; the others follow
     in their order while each stays visibly different from those before it (the list keeps
     its length or loses one)."""
     if not settling:
         return ()
     audits = (clock.reserve - settling) / options.candidates
-    deadline = min(clock.deadline - audits, time.monotonic() + settling)
-    better, out = settle(plan, rules, groups, candidates[0].layout,
-                         [c.layout for c in candidates[1:]], options, deadline, building)
+    deadline = clock.deadline - audits  # at least ``settling``; more when the search ended early
+    better, out = settle(plan, rules, groups, candidates[0].layout, options, deadline, building)
     if better is not None:
         done = plan.with_layout(better)
         first = replace(candidates[0], layout=better, optimal=False,
@@ -215,19 +219,14 @@ def _proof(plan: Plan, rules: RuleSet, group: tuple[list[str], list[PieceSpec]],
 
 
 class _HardSearch(GroupSearch):
-    """The search of one group of rooms with some group rules made hard (sufficient form),
-    each layout visibly different from the other candidates' (``avoid``)."""
+    """The search of one group of rooms with some group rules made hard (sufficient form)."""
 
     hard: tuple[tuple[str, str], ...] = ()
-    avoid: tuple[dict[str, Placement], ...] = ()
 
     def _start(self, stage: int, again: bool = False) -> None:
         super()._start(stage, again)
         built = self.built
         assert built is not None
-        movable = [pv for pv in built.pieces if not pv.locked]
-        for where in self.avoid:
-            self._forbid_near(built, movable, where)
         require(built.model, built.pieces, built.rooms, self.hard, Form.SUFFICIENT)
 
 
@@ -245,19 +244,19 @@ def _objective(plan: Plan, rules: RuleSet, groups: list[tuple[list[str], list[Pi
 
 
 def settle(plan: Plan, rules: RuleSet, groups: list[tuple[list[str], list[PieceSpec]]],
-           layout: Layout, others: list[Layout], options, deadline: float,
+           layout: Layout, options, deadline: float,
            building: tuple[BuildingFinding, ...] = ()) -> tuple[Layout | None, tuple[Possibility, ...]]:
     """Settle every group rule the arrangement ``layout`` misses (see the module text), by
     ``deadline`` (``time.monotonic()``). ``groups`` are the solve's groups of rooms (rooms
-    and pieces), ``others`` the layouts of the other candidates (a layout taken must stay
-    visibly different from each), ``options`` the solve's options (grid, seed).
+    and pieces), ``options`` the solve's options (grid, seed).
 
     Returns the improved layout (None when none was taken) and one verdict per missed rule
     family of the arrangement the check began with."""
     rooms_bare = no_turning(building)
     current = plan.with_layout(layout)
     misses = _misses(current, rules)
-    joint = _all_at_once(plan, rules, groups, current, misses, options, deadline, building)
+    joint, tried = _all_at_once(plan, rules, groups, current, misses, options, deadline,
+                                building)
     current, taken = joint or current, joint is not None
     won = ("every group rule of its rooms made hard at once; the candidate was rearranged"
            if taken else "met once another rule was won")
@@ -291,8 +290,8 @@ def settle(plan: Plan, rules: RuleSet, groups: list[tuple[list[str], list[PieceS
                     "has it")
             continue
         end = time.monotonic() + max(0.1, deadline - time.monotonic()) / (len(misses) - k)
-        reach, detail, better = _second(plan, rules, group, miss, current, others, options, end,
-                                        building)
+        reach, detail, better = _second(plan, rules, group, miss, current, options, end,
+                                        building, tried)
         verdict(reach, detail)
         if better is not None:
             current, taken = better, True
@@ -300,23 +299,36 @@ def settle(plan: Plan, rules: RuleSet, groups: list[tuple[list[str], list[PieceS
 
 
 def _second(plan: Plan, rules: RuleSet, group: tuple[list[str], list[PieceSpec]],
-            miss: GroupCheck, current: Plan, others: list[Layout], options, end: float,
-            building: tuple[BuildingFinding, ...]) -> tuple[Reach, str, Plan | None]:
+            miss: GroupCheck, current: Plan, options, end: float,
+            building: tuple[BuildingFinding, ...], tried: frozenset[frozenset[tuple[str, str]]]
+            ) -> tuple[Reach, str, Plan | None]:
     """The second search for ``miss`` (until ``end``): first with every group rule
     ``current`` meets in the group kept and apart from the other candidates (its arrangement
-    may be taken: returned third), then, when that finds none, with the rule alone (to say
-    what meeting it costs). Returns the verdict and its detail."""
+    may be taken: returned third); then, for a rule that makes a group work, with only the
+    kept rules that do too (a comfort rule such as a bed head clear of a window may be given
+    up for it; taken when the candidate then misses less by weight); then, when neither is
+    taken, with the rule alone (to say what meeting it costs). Each search starts from the
+    current arrangement (a hint); a set of rules the search with every rule hard (``tried``)
+    already failed to meet is not searched again. Returns the verdict and its detail."""
     rule = (miss.rule, miss.pieces[0])
-    half = time.monotonic() + (end - time.monotonic()) / 2
-    where = _second_search(plan, rules, group, (*_kept(current, rules, group), rule), others,
-                           options, half, building)
-    trial = (plan.with_layout(tuple((pid, where.get(pid, at)) for pid, at in current.layout))
-             if where is not None else None)
+    kept = _kept(current, rules, group)
+    essential = [k for k in kept if not is_comfort(k[0])]
+    ladder = [kept] + ([essential] if len(essential) < len(kept) and not is_comfort(rule[0]) else [])
+    ladder = [hard for hard in ladder if _by_family((*hard, rule)) not in tried]
     base = _fails(current, rules, miss)
-    if (trial is not None and _fails(trial, rules, miss) < base
-            and _takes(plan, rules, trial, current, others, building)):
-        return Reach.MET, "the rule made hard; the candidate was rearranged to meet it", trial
-    where = _second_search(plan, rules, group, (rule,), [], options, end, building)
+    start = dict(current.layout)
+    for hard in ladder:
+        step = time.monotonic() + 2 / 3 * (end - time.monotonic())
+        where = _second_search(plan, rules, group, (*hard, rule), options, step,
+                               building, start)
+        trial = (plan.with_layout(tuple((pid, where.get(pid, at)) for pid, at in current.layout))
+                 if where is not None else None)
+        if (trial is not None and _fails(trial, rules, miss) < base
+                and _takes(rules, trial, current, building)):
+            given = "" if len(hard) == len(kept) else ", a comfort rule given up for it"
+            return (Reach.MET, f"the rule made hard{given}; the candidate was rearranged to meet "
+                    "it", trial)
+    where = _second_search(plan, rules, group, (rule,), options, end, building, start)
     if where is None:
         return (Reach.OPEN, "no arrangement that passes the audit and meets it was found in the "
                 "time; the placement model alone allows it", None)
@@ -328,59 +340,67 @@ def _second(plan: Plan, rules: RuleSet, group: tuple[list[str], list[PieceSpec]]
             + ("; ".join(cost) if cost else "nothing more; it repeats another candidate"), None)
 
 
-def _takes(plan: Plan, rules: RuleSet, trial: Plan, current: Plan, others: list[Layout],
+def _by_family(hard: tuple[tuple[str, str], ...]) -> frozenset[tuple[str, str]]:
+    """A set of (rule, subject) pairs as (rule family, subject): the same rules to a search."""
+    return frozenset((family(rule) or rule, subject) for rule, subject in hard)
+
+
+def _takes(rules: RuleSet, trial: Plan, current: Plan,
            building: tuple[BuildingFinding, ...]) -> bool:
     """True when the arrangement ``trial`` may replace ``current``: it misses less of the
     group rules (by weight), the whole flat passes the audit (but the ``building``
-    findings), and it stays visibly different from each of the ``others``."""
+    findings)."""
     if group_cost(trial, rules) >= group_cost(current, rules):
         return False
     verdict = judge(trial, rules, widths=True)
-    return ((verdict.passed or excused(verdict, building))
-            and all(visible_changes(spots(plan.with_layout(o), rules), spots(trial, rules))
-                    for o in others))
+    return verdict.passed or excused(verdict, building)
 
 
 def _all_at_once(plan: Plan, rules: RuleSet, groups: list[tuple[list[str], list[PieceSpec]]],
                  current: Plan, misses: list[GroupCheck], options, deadline: float,
-                 building: tuple[BuildingFinding, ...]) -> Plan | None:
+                 building: tuple[BuildingFinding, ...]
+                 ) -> tuple[Plan | None, frozenset[frozenset[tuple[str, str]]]]:
     """One search per group of rooms with a miss, every group rule the model can state there
     made hard at once (sufficient forms, :func:`roomfit.solve.hard_rules.require`), within
     :data:`JOINT` of the time to ``deadline``: where the room allows every rule together, this finds the
     arrangement that has them all, which single-rule searches trading one rule for another
     may not. It need not stand apart from the other candidates: it goes first and they
     follow it while visibly different (:func:`settle_first`).
-    Returns the improved arrangement (taken as :func:`_takes` says), or None."""
+    Returns the improved arrangement (taken as :func:`_takes` says) or None, and the sets of
+    rules searched without a result."""
     todo = [g for g in groups if any(m.pieces and _group_of(groups, m.pieces[0]) is g
                                      for m in misses)]
     end = time.monotonic() + JOINT * max(0.0, deadline - time.monotonic())
-    best = None
+    best, tried = None, set()
     for k, group in enumerate(todo):
         stop = time.monotonic() + max(0.0, end - time.monotonic()) / (len(todo) - k)
         if stop - time.monotonic() < 0.2:
             break
         base = best or current
-        where = _second_search(plan, rules, group, tuple(_kept(base, rules, group, missed=True)),
-                               [], options, stop, building)
+        hard = tuple(_kept(base, rules, group, missed=True))
+        where = _second_search(plan, rules, group, hard, options, stop, building,
+                               dict(base.layout))
         if where is None:
+            tried.add(_by_family(hard))
             continue
         trial = plan.with_layout(tuple((pid, where.get(pid, at)) for pid, at in base.layout))
-        if _takes(plan, rules, trial, base, [], building):
+        if _takes(rules, trial, base, building):
             best = trial
-    return best
+    return best, frozenset(tried)
 
 
 def _second_search(plan: Plan, rules: RuleSet, group: tuple[list[str], list[PieceSpec]],
-                   hard: tuple[tuple[str, str], ...], others: list[Layout], options, end: float,
-                   building: tuple[BuildingFinding, ...]) -> dict[str, Placement] | None:
+                   hard: tuple[tuple[str, str], ...], options, end: float,
+                   building: tuple[BuildingFinding, ...],
+                   start: dict[str, Placement] | None = None) -> dict[str, Placement] | None:
     """The first checker-passing layout of ``group`` with the rules ``hard`` (rule, subject)
-    in their sufficient form, apart from the layouts ``others`` as the search keeps its own
-    candidates apart, searched until ``end``; None when there is none in time."""
+    in their sufficient form, searched until ``end``, from the hint ``start`` (the arrangement being
+    improved); None when there is none in time."""
     seconds = max(0.1, end - time.monotonic())
     rooms, specs = group
     sub = replace(options, candidates=1, time_limit=seconds)
     search = _HardSearch(plan, rules, rooms, specs, sub, Clock(seconds), None, Counters(), building)
     search.hard = hard
-    search.avoid = tuple(dict(o) for o in others)
+    search.warm = {pid: at for pid, at in (start or {}).items() if pid in search.ids}
     search.run(1, end)
     return search.found[0].placements if search.found else None
