@@ -57,7 +57,8 @@ from roomfit.solve.rooms import RoomGeo
 from roomfit.solve.symmetry import interchangeable
 from roomfit.solve.vars import PieceVars
 
-__all__ = ["Form", "FAMILIES", "family", "rule_literal", "require", "view_literal", "any_of", "axis_sign"]
+__all__ = ["Form", "FAMILIES", "family", "rule_literal", "require", "view_literal", "bed_window_literal",
+           "any_of", "axis_sign"]
 
 _SCALE = 10_000  # tangents as whole ten-thousandths
 
@@ -249,7 +250,10 @@ def _bedside(m: cp_model.CpModel, stand: PieceVars, bed: PieceVars, form: Form) 
     return any_of(m, options)
 
 
-def _bed_window(m: cp_model.CpModel, bed: PieceVars, geo: dict[str, RoomGeo]) -> cp_model.IntVar:
+def bed_window_literal(m: cp_model.CpModel, bed: PieceVars,
+                       geo: dict[str, RoomGeo]) -> cp_model.IntVar:
+    """A literal that implies the audit's ``group.bed_window`` (both forms alike): where the
+    bed's head is flush with a wall, its span clear of every window on that wall."""
     ok = m.new_bool_var("")
     for (r, rot), choices in bed.walls.items():
         walls = [w for w in geo[r].walls if w.outward == side_direction("back", rot)]
@@ -356,7 +360,7 @@ def _subject_literal(m: cp_model.CpModel, pieces: list[PieceVars], geo: dict[str
         lits = [_bedside(m, me, b, form) for b in others if b.spec.category in cats]
         sound = True
     elif fam == "group.bed_window":
-        lits, sound = [_bed_window(m, me, geo)], True
+        lits, sound = [bed_window_literal(m, me, geo)], True
     elif fam == "group.rug":
         lit = rug_literal(m, me, pieces, necessary=form == Form.NECESSARY)
         lits, sound = [] if lit is None else [lit], True

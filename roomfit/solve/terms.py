@@ -22,7 +22,7 @@ from roomfit.plan.data import Plan, Trip
 from roomfit.rules.catalog import PieceSpec
 from roomfit.rules.groups import param
 from roomfit.solve.groups import conversation_terms, relation_group_terms, rug_terms, unmet_terms
-from roomfit.solve.hard_rules import any_of, axis_sign, view_literal
+from roomfit.solve.hard_rules import any_of, axis_sign, bed_window_literal, view_literal
 from roomfit.solve.rooms import RoomGeo
 from roomfit.solve.vars import PieceVars
 
@@ -205,20 +205,10 @@ def add_objective(m: cp_model.CpModel, pieces: list[PieceVars], geo: dict[str, R
             m.add(on == 0).only_enforce_if(off)
             m.add(on >= 1).only_enforce_if(off.negated())
             terms.append(int(w["wall"]) * off)
-        if pv.spec.category == "bed":
-            for (r, rot), choices in pv.walls.items():
-                for wl_lit, wl in zip(choices, [x for x in geo[r].walls
-                                                if x.outward == side_direction("back", rot)], strict=True):
-                    for wall, lo, hi, _, _ in geo[r].windows:
-                        if wall != wl:
-                            continue
-                        along = pv.x if wall.axis == "y" else pv.y
-                        span = pv.size(rot)[0] if wall.axis == "y" else pv.size(rot)[1]
-                        left, right, pen = m.new_bool_var(""), m.new_bool_var(""), m.new_bool_var("")
-                        m.add(along + span <= lo).only_enforce_if(left)
-                        m.add(along >= hi).only_enforce_if(right)
-                        m.add_bool_or([left, right, pen, wl_lit.negated()])
-                        terms += [int(w["bed_under_window"]) * pen, *unmet_terms(pen, "group.bed_window")]
+        if pv.spec.category == "bed" and pv.walls:
+            clear = bed_window_literal(m, pv, geo)
+            terms += [int(w["bed_under_window"]) * (1 - clear),
+                      *unmet_terms(1 - clear, "group.bed_window")]
         if pv.spec.category == "dining_table":
             runs = [(sum(px for px, _ in f.zone or f.outline) / len(f.zone or f.outline),
                      sum(py for _, py in f.zone or f.outline) / len(f.zone or f.outline))
